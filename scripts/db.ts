@@ -1,0 +1,52 @@
+// Migrations and seeders (umzug): npm run db:migrate | db:migrate:undo | db:seed | db:reset
+import path from 'node:path';
+import { SequelizeStorage, Umzug } from 'umzug';
+import { createSequelize, DEFAULT_DATABASE_URL } from '../lib/db/sequelize';
+
+const sequelize = createSequelize(process.env.DATABASE_URL ?? DEFAULT_DATABASE_URL);
+const root = path.resolve(__dirname, '..');
+
+const migrator = new Umzug({
+  migrations: { glob: ['migrations/*.ts', { cwd: root }] },
+  context: sequelize.getQueryInterface(),
+  storage: new SequelizeStorage({ sequelize, tableName: 'schema_migrations', modelName: 'SchemaMigration' }),
+  logger: undefined,
+});
+
+const seeder = new Umzug({
+  migrations: { glob: ['seeders/*.ts', { cwd: root }] },
+  context: sequelize.getQueryInterface(),
+  storage: new SequelizeStorage({ sequelize, tableName: 'schema_seeds', modelName: 'SchemaSeed' }),
+  logger: undefined,
+});
+
+async function main() {
+  const cmd = process.argv[2] ?? 'migrate';
+  if (cmd === 'migrate') {
+    const done = await migrator.up();
+    console.log(`[db] migrations applied: ${done.length}`);
+  } else if (cmd === 'undo') {
+    const all = process.argv[3] === '--all';
+    const done = await migrator.down(all ? { to: 0 } : undefined);
+    console.log(`[db] migrations reverted: ${done.length}`);
+  } else if (cmd === 'seed') {
+    const done = await seeder.up();
+    console.log(done.length ? `[db] demo data seeded: ${done.map((d) => d.name).join(', ')}` : '[db] demo data already present');
+  } else if (cmd === 'reset') {
+    await seeder.down({ to: 0 });
+    await migrator.down({ to: 0 });
+    await migrator.up();
+    await seeder.up();
+    console.log('[db] reset done');
+  } else {
+    throw new Error(`unknown command ${cmd}`);
+  }
+}
+
+main()
+  .then(() => sequelize.close())
+  .catch(async (err) => {
+    console.error('[db]', err instanceof Error ? err.message : err);
+    await sequelize.close();
+    process.exit(1);
+  });
