@@ -1,0 +1,2 @@
+export { CalcError } from './errors';
+export type { CalcErrorCode } from './errors';

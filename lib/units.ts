@@ -1,0 +1,86 @@
+// Sub-unit prefixes are stored as divisors so that 470n is exactly 470/1e9 (no 4.7000000000000005e-7).
+const PREFIX: Record<string, number> = {
+  p: -1e12,
+  n: -1e9,
+  'µ': -1e6,
+  m: -1e3,
+  R: 1,
+  r: 1,
+  k: 1e3,
+  K: 1e3,
+  meg: 1e6,
+  M: 1e6,
+  G: 1e9,
+  T: 1e12,
+};
+
+function scale(x: number, mult: number): number {
+  return mult < 0 ? x / -mult : x * mult;
+}
+
+const UNIT_SUFFIX = /(ohms?|Ω|Ω|hz|v|a|f|w|s|h)$/i;
+const PREFIX_RE = '(meg|[pnµmRrkKMGT])';
+const INFIX = new RegExp(`^([+-]?)(\\d+)${PREFIX_RE}(\\d+)$`);
+const PLAIN = new RegExp(`^([+-]?(?:\\d+\\.?\\d*|\\.\\d+)(?:[eE][+-]?\\d+)?)${PREFIX_RE}?$`);
+
+/**
+ * Parses engineering notation: '4k7', '1.5k', '22u', '470n', '2M2', '-1.5', '1e3', '10 kΩ', '22µF', '4R7'.
+ * 'm' is milli and 'M' (or 'meg') is mega. Returns null when the text is not a finite number.
+ */
+export function parseEng(text: string): number | null {
+  if (typeof text !== 'string') return null;
+  let s = text.trim().replace(/μ/g, 'µ').replace(/u/g, 'µ');
+  if (s === '') return null;
+  // 'meg' must not lose its trailing letters to the unit stripper; it never ends in a unit letter.
+  const unit = UNIT_SUFFIX.exec(s);
+  if (unit && !/^\d*\.?\d*(e[+-]?\d+)?$/i.test(s)) s = s.slice(0, unit.index).trimEnd();
+  s = s.replace(/\s+/g, '');
+  if (s === '' || s === '+' || s === '-') return null;
+  const infix = INFIX.exec(s);
+  let value: number | null = null;
+  if (infix) {
+    const [, sign, whole, prefix, frac] = infix;
+    const mult = PREFIX[prefix ?? ''];
+    if (mult !== undefined) value = scale(Number(`${sign}${whole}.${frac}`), mult);
+  } else {
+    const plain = PLAIN.exec(s);
+    if (plain) {
+      const mult = plain[2] ? PREFIX[plain[2]] : 1;
+      if (mult !== undefined) value = scale(Number(plain[1]), mult);
+    }
+  }
+  return value !== null && Number.isFinite(value) ? value : null;
+}
+
+const FORMAT_PREFIXES: Array<[number, string]> = [
+  [1e12, 'T'],
+  [1e9, 'G'],
+  [1e6, 'M'],
+  [1e3, 'k'],
+  [1, ''],
+  [1e-3, 'm'],
+  [1e-6, 'µ'],
+  [1e-9, 'n'],
+  [1e-12, 'p'],
+];
+
+function trimZeros(s: string): string {
+  return s.includes('.') ? s.replace(/\.?0+$/, '') : s;
+}
+
+/** Formats a value in engineering notation with `digits` significant figures: 4700 → '4.7 kΩ'. */
+export function formatEng(value: number, unit = '', digits = 3): string {
+  if (!Number.isFinite(value)) return `– ${unit}`.trim();
+  if (value === 0) return `0 ${unit}`.trim();
+  const abs = Math.abs(value);
+  let index = FORMAT_PREFIXES.findIndex(([scale]) => abs >= scale * 0.9999999);
+  if (index < 0) index = FORMAT_PREFIXES.length - 1;
+  let [scale, prefix] = FORMAT_PREFIXES[index] ?? [1, ''];
+  let mantissa = Number((value / scale).toPrecision(digits));
+  if (Math.abs(mantissa) >= 1000 && index > 0) {
+    [scale, prefix] = FORMAT_PREFIXES[index - 1] ?? [scale, prefix];
+    mantissa = Number((value / scale).toPrecision(digits));
+  }
+  const text = trimZeros(mantissa.toPrecision(digits).includes('e') ? String(mantissa) : mantissa.toPrecision(digits));
+  return `${text} ${prefix}${unit}`.trim();
+}
