@@ -211,6 +211,10 @@ export function parseCurveCsv(text: string, opts: ParseCurveCsvOptions): ParseCu
     errors.add(null, null, 'The file contains NUL bytes, so it is binary, not a CSV text file.');
     return fail();
   }
+  if (text.startsWith('%PDF')) {
+    errors.add(null, null, 'The file is a PDF, not a CSV text file.');
+    return fail();
+  }
   const body = text.replace(/^\uFEFF/, '');
   if (body.trim() === '') {
     errors.add(null, null, 'The file is empty.');
