@@ -1,0 +1,77 @@
+import 'server-only';
+import { NextResponse } from 'next/server';
+import { ForeignKeyConstraintError, UniqueConstraintError, DatabaseError } from 'sequelize';
+import { ZodError } from 'zod';
+import { CalcError } from '@/lib/calc';
+
+export const ERROR_STATUS = {
+  bad_request: 400,
+  unauthorized: 401,
+  forbidden: 403,
+  not_found: 404,
+  conflict: 409,
+  payload_too_large: 413,
+  unsupported_media_type: 415,
+  unprocessable_entity: 422,
+  too_many_requests: 429,
+  internal_error: 500,
+} as const;
+export type ErrorCode = keyof typeof ERROR_STATUS;
+
+export type ErrorBody = {
+  error: { code: ErrorCode | string; message: string; fieldErrors?: Record<string, string[]>; details?: unknown };
+};
+
+export class ApiError extends Error {
+  readonly code: ErrorCode;
+  readonly fieldErrors?: Record<string, string[]>;
+  readonly details?: unknown;
+  constructor(code: ErrorCode, message: string, extra?: { fieldErrors?: Record<string, string[]>; details?: unknown }) {
+    super(message);
+    this.code = code;
+    this.fieldErrors = extra?.fieldErrors;
+    this.details = extra?.details;
+  }
+}
+
+export function zodFieldErrors(err: ZodError): Record<string, string[]> {
+  const out: Record<string, string[]> = {};
+  for (const issue of err.issues) {
+    const key = issue.path.length ? issue.path.map(String).join('.') : '_';
+    (out[key] ??= []).push(issue.message);
+  }
+  return out;
+}
+
+export function errorResponse(code: ErrorCode | string, message: string, status: number, extra?: Omit<ErrorBody['error'], 'code' | 'message'>) {
+  return NextResponse.json<ErrorBody>({ error: { code, message, ...extra } }, { status });
+}
+
+export function toErrorResponse(err: unknown) {
+  if (err instanceof ApiError) {
+    return errorResponse(err.code, err.message, ERROR_STATUS[err.code], { fieldErrors: err.fieldErrors, details: err.details });
+  }
+  if (err instanceof ZodError) {
+    const fieldErrors = zodFieldErrors(err);
+    const first = err.issues[0];
+    const where = first?.path.length ? `${first.path.join('.')}: ` : '';
+    return errorResponse('unprocessable_entity', `Invalid input. ${where}${first?.message ?? ''}`.trim(), 422, { fieldErrors });
+  }
+  if (err instanceof CalcError) {
+    return errorResponse(`calc_${err.code}`, err.message, 422);
+  }
+  if (err instanceof UniqueConstraintError) {
+    return errorResponse('conflict', 'That record already exists.', 409);
+  }
+  if (err instanceof ForeignKeyConstraintError) {
+    return errorResponse('conflict', 'That record is referenced by or refers to something that does not exist.', 409);
+  }
+  if (err instanceof DatabaseError && (err.parent as { code?: string } | undefined)?.code === '23514') {
+    return errorResponse('conflict', err.message.replace(/^.*?: /, ''), 409);
+  }
+  if (err instanceof SyntaxError) {
+    return errorResponse('bad_request', 'The request body is not valid JSON.', 400);
+  }
+  console.error('[api] unhandled error', err);
+  return errorResponse('internal_error', 'Something went wrong on our side. The error has been logged.', 500);
+}

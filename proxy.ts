@@ -1,0 +1,9 @@
+import { withAuth } from 'next-auth/middleware';
+
+// Early redirect for signed-out visitors; the real checks (role, active account) run again in every
+// page and route handler.
+export default withAuth({ pages: { signIn: '/sign-in' } });
+
+export const config = {
+  matcher: ['/((?!api|_next|fonts|favicon.ico|sign-in|invitations|forbidden).*)'],
+};
