@@ -59,7 +59,6 @@ export const PLACEHOLDER_KG2 = 4500;
 
 const MIN_FIT_POINTS = 10;
 const DEFAULT_MAX_ITERATIONS = 100;
-const LM_CHUNK = 10;
 const STARTS = 3;
 
 type Bounds = { min: number[]; max: number[] };
@@ -237,32 +236,39 @@ function runLm(sample: Sample, fn: CurrentFn, start: number[], bounds: Bounds, m
     const p = logs.map(Math.exp);
     return (i: number) => fn(p, i) / (sample.measured[i] ?? 1);
   };
-  // The solver always runs to maxIterations unless the error reaches zero, which noisy data never does, so
-  // run it in chunks and stop once a chunk no longer improves the error.
+  // The library keeps every step, even one that raises the error, and only remembers the best point; a single
+  // bad step into a region where the model is zero everywhere then freezes it (zero Jacobian). So each call makes
+  // one step and the accept/reject and damping schedule of classic Levenberg–Marquardt is kept here.
   let logs = start;
   let sse = Infinity;
+  let damping = 1e-2;
   let iterations = 0;
+  let quietSteps = 0;
   try {
-    while (iterations < maxIterations) {
-      const chunk = Math.min(LM_CHUNK, maxIterations - iterations);
+    while (iterations < maxIterations && damping < 1e9) {
       const out = levenbergMarquardt({ x: xs, y: ys }, model, {
         initialValues: logs,
         minValues: bounds.min,
         maxValues: bounds.max,
-        damping: 1e-2,
+        damping,
         gradientDifference: 1e-5,
         centralDifference: true,
-        maxIterations: chunk,
-        errorTolerance: 1e-12,
+        maxIterations: 1,
+        errorTolerance: 1e-14,
       });
-      iterations += out.iterations;
-      if (!Number.isFinite(out.parameterError)) break;
-      const improved = sse - out.parameterError;
-      if (out.parameterError < sse) {
+      iterations++;
+      if (!Number.isFinite(sse)) sse = Number.isFinite(out.parameterError) ? out.parameterError : Infinity;
+      if (!Number.isFinite(sse)) break;
+      const gain = sse - out.parameterError;
+      if (Number.isFinite(out.parameterError) && gain > 0 && out.parameterValues.some((v, k) => v !== logs[k])) {
         logs = out.parameterValues;
         sse = out.parameterError;
+        damping = Math.max(damping / 9, 1e-9);
+        quietSteps = gain < 1e-9 * sse ? quietSteps + 1 : 0;
+        if (quietSteps >= 3) break;
+      } else {
+        damping *= 11;
       }
-      if (!(improved > 1e-7 * sse)) break;
     }
   } catch {
     // The solver throws on singular or non-finite normal equations; another start may still succeed.
