@@ -4,8 +4,8 @@ import { defineConfig } from 'vitest/config';
 export default defineConfig({
   resolve: {
     alias: {
-      '@': path.resolve(__dirname),
-      'server-only': path.resolve(__dirname, 'tests/support/empty.ts'),
+      '@': path.resolve(import.meta.dirname),
+      'server-only': path.resolve(import.meta.dirname, 'tests/support/empty.ts'),
     },
   },
   test: {
@@ -14,6 +14,6 @@ export default defineConfig({
     testTimeout: 30_000,
     hookTimeout: 60_000,
     fileParallelism: false,
-    globalSetup: ['tests/support/global-setup.ts'],
+    setupFiles: ['tests/support/setup-env.ts'],
   },
 });

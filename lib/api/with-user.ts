@@ -2,7 +2,7 @@ import 'server-only';
 import type { NextRequest } from 'next/server';
 import type { z } from 'zod';
 import { can, type Permission } from '@/lib/auth/policy';
-import { getCurrentUser, type CurrentUser } from '@/lib/auth/session';
+import { getRequestUser, type CurrentUser } from '@/lib/auth/session';
 import { ApiError, toErrorResponse } from './errors';
 
 type RouteParams = Record<string, string | string[] | undefined>;
@@ -13,7 +13,7 @@ type Handler<P extends RouteParams> = (req: NextRequest, ctx: { user: CurrentUse
 export function withUser<P extends RouteParams = RouteParams>(permission: Permission, handler: Handler<P>) {
   return async (req: NextRequest, context: { params: Promise<P> }) => {
     try {
-      const user = await getCurrentUser();
+      const user = await getRequestUser(req);
       if (!user) throw new ApiError('unauthorized', 'Sign in to use Anodyne.');
       if (!can(user.role, permission)) throw new ApiError('forbidden', `Your role (${user.role}) may not do this.`);
       const params = (await context.params) ?? ({} as P);

@@ -1,0 +1,56 @@
+// The single table of who may call which route: anonymous and each of the four roles.
+// Add a row for every new route. `ok` is the status an allowed caller gets with the row's request.
+import { describe, expect, it } from 'vitest';
+import { call, type CallOptions, type DemoRole } from '../support/api';
+
+type Handler = Parameters<typeof call>[0];
+type Rule = {
+  route: string;
+  handler: () => Promise<Handler>;
+  request?: Omit<CallOptions, 'as'> | (() => Promise<Omit<CallOptions, 'as'>>);
+  allowed: DemoRole[];
+  ok: number;
+};
+
+const ALL: DemoRole[] = ['admin', 'designer', 'technician', 'reviewer'];
+
+export const RULES: Rule[] = [
+  // --- foundation ---
+  { route: 'GET /api/me', handler: async () => (await import('@/app/api/me/route')).GET, allowed: ALL, ok: 200 },
+  { route: 'GET /api/admin/users', handler: async () => (await import('@/app/api/admin/users/route')).GET, allowed: ['admin'], ok: 200 },
+  {
+    route: 'PATCH /api/admin/users/{id}',
+    handler: async () => (await import('@/app/api/admin/users/[id]/route')).PATCH,
+    request: { method: 'PATCH', params: { id: '999999' }, body: { role: 'designer' } },
+    allowed: ['admin'],
+    ok: 404,
+  },
+  {
+    route: 'POST /api/admin/invitations',
+    handler: async () => (await import('@/app/api/admin/invitations/route')).POST,
+    request: { method: 'POST', body: { email: 'not-an-address', displayName: 'x', role: 'designer' } },
+    allowed: ['admin'],
+    ok: 422,
+  },
+  { route: 'GET /api/admin/outbox', handler: async () => (await import('@/app/api/admin/outbox/route')).GET, allowed: ['admin'], ok: 200 },
+  { route: 'GET /api/admin/mail-sink', handler: async () => (await import('@/app/api/admin/mail-sink/route')).GET, allowed: ['admin'], ok: 200 },
+  { route: 'GET /api/audit', handler: async () => (await import('@/app/api/audit/route')).GET, allowed: ['admin', 'designer', 'reviewer'], ok: 200 },
+  // --- tube library ---
+  // --- projects and stages ---
+  // --- bench checks and review ---
+];
+
+describe('route rules: 401 for anonymous, 403 for a role that may not, the allowed status otherwise', () => {
+  for (const rule of RULES) {
+    for (const who of ['anonymous', ...ALL] as const) {
+      const expected = who === 'anonymous' ? 401 : rule.allowed.includes(who) ? rule.ok : 403;
+      it(`${rule.route} as ${who} → ${expected}`, async () => {
+        const handler = await rule.handler();
+        const request = typeof rule.request === 'function' ? await rule.request() : (rule.request ?? {});
+        const { status, json } = await call(handler, { ...request, as: who === 'anonymous' ? null : who });
+        expect(status, JSON.stringify(json)).toBe(expected);
+        if (status >= 400) expect(json?.error?.message).toBeTruthy();
+      });
+    }
+  }
+});
