@@ -17,6 +17,8 @@ export type FitOptions = {
   maxIterations?: number;
   /** Clock for elapsedMs; lib/calc reads no clock of its own. */
   now?: () => number;
+  /** Larger sets are thinned to this many evenly spaced points for the solver; errors still cover all. Default 2000. */
+  maxFitPoints?: number;
   /** Called with 0…1 between starts. */
   onProgress?: (fraction: number) => void;
 };
@@ -59,6 +61,7 @@ export const PLACEHOLDER_KG2 = 4500;
 
 const MIN_FIT_POINTS = 10;
 const DEFAULT_MAX_ITERATIONS = 100;
+const DEFAULT_MAX_FIT_POINTS = 2000;
 const STARTS = 3;
 
 type Bounds = { min: number[]; max: number[] };
@@ -112,6 +115,19 @@ function selectSample(
     sample.measured[k] = current(p) ?? 0;
   });
   return { sample, skipped: points.length - n };
+}
+
+function thin(sample: Sample, max: number): Sample {
+  if (sample.count <= max) return sample;
+  const n = Math.max(MIN_FIT_POINTS, Math.floor(max));
+  const pick = (a: Float64Array) => Float64Array.from({ length: n }, (_, k) => a[Math.floor((k * sample.count) / n)] ?? 0);
+  return { va: pick(sample.va), vg: pick(sample.vg), vg2: pick(sample.vg2), measured: pick(sample.measured), count: n };
+}
+
+function thinningNote(fitted: Sample, all: Sample): string[] {
+  return fitted.count < all.count
+    ? [`Fitted on ${fitted.count} of ${all.count} points (evenly spaced); the errors are over all ${all.count}.`]
+    : [];
 }
 
 function ratios(sample: Sample, fn: CurrentFn, params: readonly number[]): Float64Array {
@@ -177,7 +193,8 @@ export function estimateMuFromCurves(points: readonly CurvePoint[]): number | nu
     if (g1 === undefined || g2 === undefined) continue;
     const c1 = (byGrid.get(g1) ?? []).sort((a, b) => a.va - b.va);
     const c2 = (byGrid.get(g2) ?? []).sort((a, b) => a.va - b.va);
-    const top = Math.min(Math.max(...c1.map((p) => p.ia)), Math.max(...c2.map((p) => p.ia)));
+    const peak = (c: { ia: number }[]) => c.reduce((m, p) => Math.max(m, p.ia), 0);
+    const top = Math.min(peak(c1), peak(c2));
     const level = 0.5 * top;
     const va1 = vaAt(c1, level);
     const va2 = vaAt(c2, level);
@@ -316,9 +333,9 @@ function multiStartFit(
     }
     opts.onProgress?.(0.1 + (0.85 * (k + 1)) / starts.length);
   });
-  const winner: LmOutcome | null = best;
+  const winner = best as LmOutcome | null;
   if (!winner) throw new CurveFitError('The fit did not converge from any starting point.');
-  return { logs: (winner as LmOutcome).logs, iterations, starts: starts.length };
+  return { logs: winner.logs, iterations, starts: starts.length };
 }
 
 function requireEnough(sample: Sample, what: string): void {
@@ -337,9 +354,11 @@ export function fitKorenTriode(points: readonly CurvePoint[], opts: FitOptions =
   const t0 = opts.now?.();
   const { sample, skipped } = selectSample(points, (p) => p.plateCurrent, opts.currentFloor);
   requireEnough(sample, 'plate-current');
+  const fitSample = thin(sample, opts.maxFitPoints ?? DEFAULT_MAX_FIT_POINTS);
+  const fitFn = triodeFn(fitSample);
+  const starts = gridStarts(fitSample, fitFn, [300], TRIODE_MU_GRID, estimateMuFromCurves(points), TRIODE_BOUNDS);
+  const core = multiStartFit(fitSample, fitFn, starts, TRIODE_BOUNDS, opts);
   const fn = triodeFn(sample);
-  const starts = gridStarts(sample, fn, [300], TRIODE_MU_GRID, estimateMuFromCurves(points), TRIODE_BOUNDS);
-  const core = multiStartFit(sample, fn, starts, TRIODE_BOUNDS, opts);
   const [mu, ex, kg1, kp, kvb] = core.logs.map(Math.exp);
   const parameters: KorenTriodeParams = { mu: mu ?? 0, ex: ex ?? 0, kg1: kg1 ?? 0, kp: kp ?? 0, kvb: kvb ?? 0 };
   const q = quality(ratios(sample, fn, [parameters.mu, parameters.ex, parameters.kg1, parameters.kp, parameters.kvb]));
@@ -353,7 +372,7 @@ export function fitKorenTriode(points: readonly CurvePoint[], opts: FitOptions =
     iterations: core.iterations,
     starts: core.starts,
     ...(t0 !== undefined && t1 !== undefined ? { elapsedMs: t1 - t0 } : {}),
-    notes: [],
+    notes: thinningNote(fitSample, sample),
   };
 }
 
@@ -368,13 +387,15 @@ export function fitKorenPentode(points: readonly CurvePoint[], opts: FitOptions 
   }
   const { sample, skipped } = selectSample(points, (p) => p.plateCurrent, opts.currentFloor);
   requireEnough(sample, 'plate-current');
+  const fitSample = thin(sample, opts.maxFitPoints ?? DEFAULT_MAX_FIT_POINTS);
+  const fitFn = pentodePlateFn(fitSample);
+  const starts = gridStarts(fitSample, fitFn, [5, 20, 60], PENTODE_MU_GRID, null, PENTODE_BOUNDS);
+  const core = multiStartFit(fitSample, fitFn, starts, PENTODE_BOUNDS, opts);
   const fn = pentodePlateFn(sample);
-  const starts = gridStarts(sample, fn, [5, 20, 60], PENTODE_MU_GRID, null, PENTODE_BOUNDS);
-  const core = multiStartFit(sample, fn, starts, PENTODE_BOUNDS, opts);
   const [mu = 0, ex = 0, kg1 = 0, kp = 0, kvb = 0] = core.logs.map(Math.exp);
   const q = quality(ratios(sample, fn, [mu, ex, kg1, kp, kvb]));
 
-  const notes: string[] = [];
+  const notes = thinningNote(fitSample, sample);
   let kg2 = PLACEHOLDER_KG2;
   let kg2Fitted = false;
   let screen: FitQuality | undefined;

@@ -229,3 +229,22 @@ describe('fittedCurves', () => {
     expect(() => fittedCurves('koren-pentode', KOREN_EL34, [-10], 500)).toThrow(/screenVoltage/);
   });
 });
+
+describe('large curve sets', () => {
+  it('thins a large set for the solver, says so, and still reports errors over every point', () => {
+    const points = synthesizeTriodeCurves({
+      params: KOREN_12AX7,
+      gridVoltages: range(-4.5, 0, 0.25),
+      plateVoltages: range(1, 400, 1),
+      noise: { relative: 0.01, seed: 77 },
+    });
+    expect(points.length).toBeGreaterThan(7000);
+    const t0 = performance.now();
+    const fit = fitKorenTriode(points, { maxFitPoints: 1000 });
+    expect(performance.now() - t0).toBeLessThan(3000);
+    expect(fit.pointCount + fit.skippedCount).toBe(points.length);
+    expect(fit.notes.join(' ')).toMatch(/Fitted on 1000 of \d+ points/);
+    expect(fit.rmsErrorPercent).toBeLessThan(2);
+    expect(relErr(fit.parameters.mu, KOREN_12AX7.mu)).toBeLessThan(0.02);
+  });
+});
