@@ -124,6 +124,21 @@ function thin(sample: Sample, max: number): Sample {
   return { va: pick(sample.va), vg: pick(sample.vg), vg2: pick(sample.vg2), measured: pick(sample.measured), count: n };
 }
 
+const PARAM_LABELS = ['MU', 'EX', 'KG1', 'KP', 'KVB'];
+
+function boundNotes(logs: readonly number[], bounds: Bounds): string[] {
+  const notes: string[] = [];
+  logs.forEach((v, k) => {
+    const lo = bounds.min[k] ?? -Infinity;
+    const hi = bounds.max[k] ?? Infinity;
+    if (v - lo < 1e-6 || hi - v < 1e-6) {
+      const edge = v - lo < 1e-6 ? 'lower' : 'upper';
+      notes.push(`${PARAM_LABELS[k]} ended at its ${edge} bound (${Number(Math.exp(edge === 'lower' ? lo : hi).toPrecision(3))}); the data do not pin it down.`);
+    }
+  });
+  return notes;
+}
+
 function thinningNote(fitted: Sample, all: Sample): string[] {
   return fitted.count < all.count
     ? [`Fitted on ${fitted.count} of ${all.count} points (evenly spaced); the errors are over all ${all.count}.`]
@@ -372,7 +387,7 @@ export function fitKorenTriode(points: readonly CurvePoint[], opts: FitOptions =
     iterations: core.iterations,
     starts: core.starts,
     ...(t0 !== undefined && t1 !== undefined ? { elapsedMs: t1 - t0 } : {}),
-    notes: thinningNote(fitSample, sample),
+    notes: [...thinningNote(fitSample, sample), ...boundNotes(core.logs, TRIODE_BOUNDS)],
   };
 }
 
@@ -395,7 +410,7 @@ export function fitKorenPentode(points: readonly CurvePoint[], opts: FitOptions 
   const [mu = 0, ex = 0, kg1 = 0, kp = 0, kvb = 0] = core.logs.map(Math.exp);
   const q = quality(ratios(sample, fn, [mu, ex, kg1, kp, kvb]));
 
-  const notes = thinningNote(fitSample, sample);
+  const notes = [...thinningNote(fitSample, sample), ...boundNotes(core.logs, PENTODE_BOUNDS)];
   let kg2 = PLACEHOLDER_KG2;
   let kg2Fitted = false;
   let screen: FitQuality | undefined;

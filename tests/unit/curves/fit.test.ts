@@ -248,3 +248,18 @@ describe('large curve sets', () => {
     expect(relErr(fit.parameters.mu, KOREN_12AX7.mu)).toBeLessThan(0.02);
   });
 });
+
+describe('parameter bounds', () => {
+  it('says when a parameter ends on its bound', () => {
+    // µ = 2000 lies beyond the triode bound of 500, so the fit has to stop there and must say so.
+    const points = synthesizeTriodeCurves({
+      params: { mu: 2000, ex: 1.4, kg1: 1060, kp: 12000, kvb: 300 },
+      gridVoltages: range(-0.3, 0, 0.05),
+      plateVoltages: range(20, 400, 20),
+      noise: { relative: 0.01, seed: 4 },
+    });
+    const fit = fitKorenTriode(points);
+    expect(fit.parameters.mu).toBeCloseTo(500, 6);
+    expect(fit.notes.join(' ')).toMatch(/MU ended at its upper bound \(500\)/);
+  });
+});
