@@ -1,2 +1,57 @@
+import type { StageInput } from '../validation/stage';
+import { CalcError } from './errors';
+import { analyzeCathodeFollower } from './stages/cathode-follower';
+import { analyzeCommonCathode } from './stages/common-cathode';
+import { analyzePentodeAmplifier } from './stages/pentode-amplifier';
+import { analyzePushPullOutput } from './stages/push-pull-output';
+import { analyzeSingleEndedOutput } from './stages/single-ended-output';
+import type { StageAnalysis } from './types';
+
 export { CalcError } from './errors';
 export type { CalcErrorCode } from './errors';
+export type * from './types';
+export type { StageInput, Tube } from '../validation/stage';
+export { plateCurveFamily, transferCurve, paMaxCurve } from './plot';
+export type { CurveFamilyOptions, TransferOptions } from './plot';
+export { tubeModel, tubeDerivatives } from './models/registry';
+export type { TubeModel, SmallSignalParams } from './models/registry';
+export { korenTriodeCurrent, korenPentodePlateCurrent, korenPentodeScreenCurrent } from './models/koren';
+export type { KorenTriodeParams, KorenPentodeParams } from './models/koren';
+export { childLangmuirDiodeCurrent, threeHalvesTriodeCurrent, planarPerveance } from './models/child-langmuir';
+export { tubeSubcircuit, stageNetlist } from './spice';
+
+function assertFinite(value: unknown, path: string): void {
+  if (typeof value === 'number') {
+    if (!Number.isFinite(value)) throw new CalcError('no-solution', `The calculation produced a non-finite ${path}.`);
+  } else if (Array.isArray(value)) {
+    value.forEach((v, i) => assertFinite(v, `${path}[${i}]`));
+  } else if (value && typeof value === 'object') {
+    for (const [k, v] of Object.entries(value)) assertFinite(v, path ? `${path}.${k}` : k);
+  }
+}
+
+/** The one public entry: analyses a validated stage (the output of `stageInputSchema`). */
+export function analyzeStage(input: StageInput): StageAnalysis {
+  let result: StageAnalysis;
+  switch (input.topology) {
+    case 'common-cathode':
+      result = analyzeCommonCathode(input);
+      break;
+    case 'cathode-follower':
+      result = analyzeCathodeFollower(input);
+      break;
+    case 'pentode-amplifier':
+      result = analyzePentodeAmplifier(input);
+      break;
+    case 'single-ended-output':
+      result = analyzeSingleEndedOutput(input);
+      break;
+    case 'push-pull-output':
+      result = analyzePushPullOutput(input);
+      break;
+    default:
+      throw new CalcError('invalid-input', `Unknown topology '${(input as { topology: string }).topology}'.`);
+  }
+  assertFinite(result, '');
+  return result;
+}

@@ -1,0 +1,77 @@
+import type { Tube } from '../../validation/stage';
+import { threeHalvesTriodeCurrent } from './child-langmuir';
+import { gridCurrent } from './grid-current';
+import { korenPentodePlateCurrent, korenPentodeScreenCurrent, korenTriodeCurrent } from './koren';
+
+export type TubeCapacitances = { cgk: number; cga: number; cak: number };
+export type TubeRatings = NonNullable<Tube['ratings']>;
+
+/** What the solvers need from any tube model; voltages are relative to the cathode. */
+export interface TubeModel {
+  kind: 'triode' | 'pentode';
+  plateCurrent(vak: number, vgk: number, vg2k: number): number;
+  screenCurrent(vgk: number, vg2k: number): number;
+  gridCurrent(vgk: number): number;
+  rgi: number;
+  capacitances: TubeCapacitances;
+  ratings: TubeRatings;
+}
+
+const ZERO_CAPS: TubeCapacitances = { cgk: 0, cga: 0, cak: 0 };
+
+export function defaultRgi(tube: Tube): number {
+  if (tube.rgi !== undefined) return tube.rgi;
+  const power = tube.model === 'koren-pentode' || (tube.ratings?.plateDissipation ?? 0) >= 5;
+  return power ? 1000 : 2000;
+}
+
+type Builder<M extends Tube['model']> = (tube: Extract<Tube, { model: M }>) => TubeModel;
+
+function common(tube: Tube) {
+  const rgi = defaultRgi(tube);
+  return {
+    rgi,
+    gridCurrent: (vgk: number) => gridCurrent(vgk, rgi),
+    capacitances: tube.capacitances ?? ZERO_CAPS,
+    ratings: tube.ratings ?? {},
+  };
+}
+
+const registry: { [M in Tube['model']]: Builder<M> } = {
+  'koren-triode': (tube) => ({
+    kind: 'triode',
+    ...common(tube),
+    plateCurrent: (vak, vgk) => korenTriodeCurrent(tube, vak, vgk),
+    screenCurrent: () => 0,
+  }),
+  'koren-pentode': (tube) => ({
+    kind: 'pentode',
+    ...common(tube),
+    plateCurrent: (vak, vgk, vg2k) => korenPentodePlateCurrent(tube, vak, vgk, vg2k),
+    screenCurrent: (vgk, vg2k) => korenPentodeScreenCurrent(tube, vgk, vg2k),
+  }),
+  'child-langmuir': (tube) => ({
+    kind: 'triode',
+    ...common(tube),
+    plateCurrent: (vak, vgk) => threeHalvesTriodeCurrent(tube, vak, vgk),
+    screenCurrent: () => 0,
+  }),
+};
+
+export function tubeModel(tube: Tube): TubeModel {
+  const build = registry[tube.model] as Builder<Tube['model']> | undefined;
+  if (!build) throw new Error(`unknown tube model '${(tube as { model: string }).model}'`);
+  return build(tube);
+}
+
+export type SmallSignalParams = { gm: number; ra: number; mu: number };
+
+/** Local gm, ra and µ by central differences at a bias point (screen held fixed for pentodes). */
+export function tubeDerivatives(model: TubeModel, vak: number, vgk: number, vg2k = 0): SmallSignalParams {
+  const hg = 1e-4 * Math.max(1, Math.abs(vgk));
+  const ha = 1e-4 * Math.max(1, Math.abs(vak));
+  const gm = (model.plateCurrent(vak, vgk + hg, vg2k) - model.plateCurrent(vak, vgk - hg, vg2k)) / (2 * hg);
+  const ga = (model.plateCurrent(vak + ha, vgk, vg2k) - model.plateCurrent(vak - ha, vgk, vg2k)) / (2 * ha);
+  const ra = ga > 1e-15 ? 1 / ga : 1e12;
+  return { gm, ra, mu: gm * ra };
+}

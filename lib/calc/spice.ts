@@ -1,0 +1,6 @@
+export function tubeSubcircuit(): string {
+  return '';
+}
+export function stageNetlist(): string {
+  return '';
+}

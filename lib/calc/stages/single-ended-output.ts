@@ -1,0 +1,46 @@
+import type { SingleEndedOutputInput } from '../../validation/stage';
+import { CalcError } from '../errors';
+import { tubeModel } from '../models/registry';
+import type { StageAnalysis } from '../types';
+import { cathodeBiasParts } from './common-cathode';
+import { screenParts } from './pentode-amplifier';
+import { analyzeSingleTube } from './single-tube';
+
+/**
+ * Ideal output transformer: the primary's DC resistance carries the whole plate current, the reflected load
+ * (primaryImpedance) only its signal part, so the plate sees Rdc at DC and Rdc + Zp for the signal.
+ */
+export function analyzeSingleEndedOutput(input: SingleEndedOutputInput): StageAnalysis {
+  const model = tubeModel(input.tube);
+  if (model.kind === 'pentode' && !input.screen) {
+    throw new CalcError('invalid-input', 'A pentode or beam tetrode needs a screen supply.');
+  }
+  const bias = cathodeBiasParts(input.bias);
+  const screen = model.kind === 'pentode' && input.screen ? screenParts(input.screen, input.supply) : null;
+  const rdc = input.primaryResistance;
+  return analyzeSingleTube({
+    topology: input.topology,
+    tube: input.tube,
+    model,
+    input,
+    net: {
+      model,
+      supply: input.supply,
+      plateDc: rdc,
+      plateAc: rdc + input.primaryImpedance,
+      cathodeDc: bias.cathodeDc,
+      cathodeAc: bias.cathodeAc,
+      gridOffset: bias.gridOffset,
+      gridPerCathodeCurrent: 0,
+      screen: screen?.net ?? null,
+      output: 'plate',
+    },
+    biasKind: bias.biasKind,
+    cathodeBypass: bias.bypass,
+    screenBypass: screen?.bypass ?? null,
+    coupling: null,
+    outputShunt: null,
+    transformerLoad: input.primaryImpedance,
+    warnings: [],
+  });
+}

@@ -1,0 +1,285 @@
+import type { Tube } from '../../validation/stage';
+import { harmonicAmplitudes, fivePoint, thdFromAmplitudes, threePoint } from '../distortion';
+import { CalcError } from '../errors';
+import { tubeDerivatives, type TubeModel } from '../models/registry';
+import { loadLine, paMaxCurve, plateCurveFamily, transferCurve } from '../plot';
+import { checkRatings } from '../ratings';
+import {
+  bypassFactor,
+  cutoff,
+  firstOrderHighPass,
+  firstOrderLowPass,
+  fitBilinear,
+  responseCurve,
+  type ResponseFactor,
+} from '../response';
+import type { HeadroomLimit, LargeSignal, OperatingPoint, StageAnalysis, StagePlot } from '../types';
+import { largestTrue, mean, SAMPLES_PER_CYCLE, sineDrive, steadyState } from './cycle';
+import { activeMeans, outputVoltage, solveNetwork, type Means, type SampleState, type SingleTubeNetwork } from './network';
+
+export type CommonStageFields = {
+  supply: number;
+  gridResistor: number;
+  sourceResistance: number;
+  heaterElevation: number;
+  drive: { amplitude: number; frequency: number };
+  derating: number;
+};
+
+export type SingleTubeSpec = {
+  topology: string;
+  tube: Tube;
+  model: TubeModel;
+  net: SingleTubeNetwork;
+  input: CommonStageFields;
+  biasKind: 'fixed' | 'cathode';
+  cathodeBypass: { resistor: number; capacitor: number } | null;
+  screenBypass: { resistor: number; capacitor: number } | null;
+  coupling: { capacitor: number; resistance: number } | null;
+  /** resistance across the output besides the tube and the external load (Ra, or Rk for a follower) */
+  outputShunt: number | null;
+  /** reflected load of an output transformer (power is delivered into it) */
+  transformerLoad: number | null;
+  warnings: string[];
+};
+
+const finite = (x: number, fallback = 0) => (Number.isFinite(x) ? x : fallback);
+const dbOf = (ratio: number) => (ratio > 0 ? Math.max(-200, 20 * Math.log10(ratio)) : -200);
+
+export function operatingPointOf(s: SampleState, model: TubeModel): OperatingPoint {
+  const pentode = model.kind === 'pentode';
+  return {
+    plateVoltage: s.vp,
+    plateCathodeVoltage: s.vp - s.vk,
+    plateCurrent: s.ia,
+    gridCathodeVoltage: s.vg - s.vk,
+    gridVoltage: s.vg,
+    cathodeVoltage: s.vk,
+    cathodeCurrent: s.ik,
+    screenVoltage: pentode ? s.vg2 : null,
+    screenCurrent: pentode ? s.ig2 : null,
+    plateDissipation: (s.vp - s.vk) * s.ia,
+    screenDissipation: pentode ? (s.vg2 - s.vk) * s.ig2 : null,
+  };
+}
+
+export function checkIdle(op: SampleState, supply: number): void {
+  const values = [op.ia, op.vp, op.vk, op.vg, op.vg2, op.ig2];
+  if (!values.every(Number.isFinite)) throw new CalcError('no-solution', 'The operating point could not be solved for these values.');
+  if (op.vg - op.vk > 1e-3) {
+    throw new CalcError(
+      'grid-conduction',
+      `The grid is ${(op.vg - op.vk).toFixed(2)} V positive of the cathode at idle, so grid current flows. Make the bias more negative.`,
+    );
+  }
+  if (op.ia < 1e-9 * Math.max(1, supply / 100)) {
+    throw new CalcError('cutoff', 'The tube is cut off at idle: no plate current flows. Reduce the bias or raise the supply.');
+  }
+}
+
+function gainOf(net: SingleTubeNetwork, m: Means, guess: SampleState, h = 1e-3) {
+  const up = solveNetwork(net, h, m, 0, guess);
+  const dn = solveNetwork(net, -h, m, 0, guess);
+  return {
+    out: (outputVoltage(net, up) - outputVoltage(net, dn)) / (2 * h),
+    plate: (up.vp - dn.vp) / (2 * h),
+    cathode: (up.vk - dn.vk) / (2 * h),
+  };
+}
+
+function outputImpedance(net: SingleTubeNetwork, m: Means, guess: SampleState): number {
+  const rNode = net.output === 'plate' ? net.plateAc : net.cathodeAc;
+  const delta = 1e-3 / Math.max(rNode, 1);
+  const up = solveNetwork(net, 0, m, delta, guess);
+  const dn = solveNetwork(net, 0, m, -delta, guess);
+  const zSeen = (outputVoltage(net, up) - outputVoltage(net, dn)) / (2 * delta);
+  // tube alone: remove the network's own resistance from the parallel combination
+  const g = 1 / zSeen - 1 / rNode;
+  return g > 1e-12 ? 1 / g : 1e12;
+}
+
+type CycleResult = { samples: SampleState[]; out: number[] };
+
+export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
+  const { net, model, input } = spec;
+  const warnings = [...spec.warnings];
+  const op = solveNetwork(net, 0, null);
+  checkIdle(op, input.supply);
+  const m0: Means = { ia: op.ia, ig2: op.ig2, ik: op.ik };
+  const opPoint = operatingPointOf(op, model);
+  const vak0 = opPoint.plateCathodeVoltage;
+  const vgk0 = opPoint.gridCathodeVoltage;
+  const vg2k0 = op.vg2 - op.vk;
+
+  // small signal
+  const d = tubeDerivatives(model, vak0, vgk0, vg2k0);
+  const g = gainOf(net, m0, op);
+  const gain = finite(g.out);
+  const zTube = outputImpedance(net, m0, op);
+  const zOut = spec.outputShunt !== null ? (spec.outputShunt * zTube) / (spec.outputShunt + zTube) : zTube;
+  const caps = model.capacitances;
+  const cin = Math.max(0, caps.cga * (1 - g.plate) + caps.cgk * (1 - g.cathode));
+  const factors: ResponseFactor[] = [];
+  const rsEff = input.sourceResistance > 0 ? (input.sourceResistance * input.gridResistor) / (input.sourceResistance + input.gridResistor) : 0;
+  if (rsEff > 0 && cin > 0) factors.push(firstOrderLowPass(rsEff * cin));
+  const cout = net.output === 'plate' ? caps.cak + caps.cga : caps.cak;
+  const loadR = spec.coupling?.resistance;
+  const zNode = loadR !== undefined ? (zOut * loadR) / (zOut + loadR) : spec.transformerLoad !== null ? (zTube * net.plateAc) / (zTube + net.plateAc) : zOut;
+  if (cout > 0) factors.push(firstOrderLowPass(zNode * cout));
+  if (spec.cathodeBypass) {
+    const r = spec.cathodeBypass.resistor;
+    const at = (z: number) => gainOf({ ...net, cathodeAc: z }, m0, op).out;
+    factors.push(bypassFactor(fitBilinear(r / 2, gain, at(r / 2), r, at(r)), r, spec.cathodeBypass.capacitor));
+  }
+  if (spec.screenBypass && net.screen) {
+    const r = spec.screenBypass.resistor;
+    const screen = net.screen;
+    const at = (z: number) => gainOf({ ...net, screen: { ...screen, ac: z } }, m0, op).out;
+    factors.push(bypassFactor(fitBilinear(r / 2, gain, at(r / 2), r, at(r)), r, spec.screenBypass.capacitor));
+  }
+  if (spec.coupling) factors.push(firstOrderHighPass(spec.coupling.capacitor * (zOut + spec.coupling.resistance)));
+
+  // large signal
+  const amp = input.drive.amplitude;
+  const drive = sineDrive(amp);
+  const runCycle = (m: Means) => {
+    const samples: SampleState[] = [];
+    let prev: SampleState = op;
+    let ia = 0;
+    let ig2 = 0;
+    let ik = 0;
+    for (const vin of drive) {
+      prev = solveNetwork(net, vin, m, 0, prev);
+      samples.push(prev);
+      ia += prev.ia;
+      ig2 += prev.ig2;
+      ik += prev.ik;
+    }
+    const n = drive.length;
+    return { means: { ia: ia / n, ig2: ig2 / n, ik: ik / n }, result: { samples, out: samples.map((s) => outputVoltage(net, s)) } as CycleResult };
+  };
+  const steady = amp > 0 ? steadyState<Means, CycleResult>(activeMeans(net), m0, runCycle) : runCycle(m0);
+  const { samples, out } = steady.result;
+  const amps = harmonicAmplitudes(out, 10);
+  const h1 = amps[1] ?? 0;
+  const harmonics = [];
+  for (let order = 2; order <= 10; order++) {
+    const a = amps[order] ?? 0;
+    harmonics.push({ order, amplitude: a, db: dbOf(h1 > 0 ? a / h1 : 0) });
+  }
+  const thd = amp > 0 ? thdFromAmplitudes(amps, 10) : 0;
+  const at = (vin: number) => outputVoltage(net, solveNetwork(net, vin, m0, 0, op));
+  const p5 = amp > 0 ? fivePoint(at(amp), at(amp / 2), outputVoltage(net, op), at(-amp / 2), at(-amp)) : null;
+  const p3 = p5 ? threePoint(at(amp), outputVoltage(net, op), at(-amp)) : null;
+  const maxVgk = Math.max(...samples.map((s) => s.vg - s.vk));
+  const minIa = Math.min(...samples.map((s) => s.ia));
+  if (amp > 0 && maxVgk > 0) warnings.push(`The grid goes ${maxVgk.toFixed(2)} V positive on peaks: grid current flows and the source is loaded.`);
+  if (amp > 0 && minIa < 0.01 * op.ia) warnings.push('The tube cuts off on negative peaks of the drive.');
+
+  const headroom = headroomOf(net, m0, op, input.supply);
+  let outputPower: number | null = null;
+  if (spec.transformerLoad !== null) {
+    const i1 = h1 / net.plateAc;
+    outputPower = (spec.transformerLoad * i1 * i1) / 2;
+  }
+  const stride = drive.length / 128;
+  const period = 1 / input.drive.frequency;
+  const outMean = mean(out);
+  const waveform = { t: [] as number[], input: [] as number[], output: [] as number[] };
+  for (let k = 0; k < drive.length; k += stride) {
+    waveform.t.push((k / drive.length) * period);
+    waveform.input.push(drive[k] ?? 0);
+    waveform.output.push((out[k] ?? 0) - outMean);
+  }
+  const largeSignal: LargeSignal = {
+    drive: amp,
+    outputAmplitude: h1,
+    harmonics,
+    thdPercent: 100 * thd,
+    thd3PointPercent: p3 ? 100 * p3.thd : 0,
+    thd5PointPercent: p5 ? 100 * p5.thd : 0,
+    dcShift: mean(samples.map((s) => s.ia)) - op.ia,
+    outputPower,
+    headroom,
+    waveform,
+  };
+
+  const ratings = checkRatings({
+    ratings: model.ratings,
+    derating: input.derating,
+    plateCathodeVoltage: vak0,
+    plateDissipation: opPoint.plateDissipation,
+    screenCathodeVoltage: model.kind === 'pentode' ? vg2k0 : null,
+    screenDissipation: opPoint.screenDissipation,
+    cathodeCurrent: Math.max(op.ik, steady.means.ik),
+    heaterCathodeVoltage: Math.abs(op.vk - input.heaterElevation),
+    gridResistance: input.gridResistor,
+    biasKind: spec.biasKind,
+  });
+  for (const r of ratings) if (r.status === 'over') warnings.push(`${r.label} exceeds the tube's rating.`);
+  if (amp > headroom.maxDrive && headroom.limitedBy !== 'none') {
+    warnings.push(`The drive (${amp.toPrecision(3)} V) is beyond the headroom limit of ${headroom.maxDrive.toPrecision(3)} V (${headroom.limitedBy}).`);
+  }
+
+  const plot = stagePlot(model, opPoint, net.plateDc + net.cathodeDc, net.plateAc + net.cathodeAc, input.supply, spec.tube);
+  return {
+    topology: spec.topology,
+    operatingPoint: opPoint,
+    perTube: [opPoint],
+    smallSignal: {
+      gm: d.gm,
+      ra: d.ra,
+      mu: d.mu,
+      gain,
+      gainDb: dbOf(Math.abs(gain)),
+      outputImpedance: finite(zOut, 1e12),
+      inputCapacitance: cin,
+      lowCutoff: cutoff(factors, 'low'),
+      highCutoff: cutoff(factors, 'high'),
+      response: responseCurve(gain, factors),
+    },
+    largeSignal,
+    ratings,
+    plot,
+    warnings,
+  };
+}
+
+function headroomOf(net: SingleTubeNetwork, m: Means, op: SampleState, supply: number) {
+  const solve = (vin: number) => solveNetwork(net, vin, m, 0, op);
+  const limit = supply;
+  const vak0 = op.vp - op.vk;
+  const candidates: Array<[HeadroomLimit, number | null]> = [
+    ['grid-conduction', largestTrue((a) => { const s = solve(a); return s.vg - s.vk < 0; }, limit)],
+    ['cutoff', largestTrue((a) => solve(-a).ia > 0.01 * op.ia, limit)],
+    ['plate-saturation', largestTrue((a) => { const s = solve(a); return s.vp - s.vk > 0.15 * vak0; }, limit)],
+  ];
+  let best: [HeadroomLimit, number] = ['none', limit];
+  for (const [name, value] of candidates) if (value !== null && value < best[1]) best = [name, value];
+  const swing = Math.abs(outputVoltage(net, solve(best[1])) - outputVoltage(net, solve(-best[1]))) / 2;
+  return { maxDrive: best[1], limitedBy: best[0], outputSwing: swing };
+}
+
+export function stagePlot(
+  model: TubeModel,
+  op: OperatingPoint,
+  rDc: number,
+  rAc: number,
+  supply: number,
+  tube: Tube,
+): StagePlot {
+  const va0 = op.plateCathodeVoltage;
+  const ia0 = op.plateCurrent;
+  const vaMax = Math.max(supply, 2.2 * va0) * 1.05;
+  const vg2 = op.screenVoltage !== null ? op.screenVoltage - op.cathodeVoltage : undefined;
+  const vgBias = op.gridCathodeVoltage;
+  return {
+    dcLoadLine: loadLine(va0, ia0, rDc),
+    acLoadLine: loadLine(va0, ia0, rAc),
+    operatingPoint: { va: va0, ia: ia0 },
+    paMax: paMaxCurve(tube.ratings?.plateDissipation ?? 0, vaMax),
+    curves: plateCurveFamily(model, { vaMax, biasGridVoltage: vgBias, screenVoltage: vg2 }),
+    transfer: transferCurve(model, { plateVoltage: va0, screenVoltage: vg2, vgMin: Math.min(3 * vgBias, -1), vgMax: 0 }),
+    screenVoltage: vg2 ?? null,
+  };
+}
