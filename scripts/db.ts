@@ -1,24 +1,10 @@
 // Migrations and seeders (umzug): npm run db:migrate | db:migrate:undo | db:seed | db:reset
-import path from 'node:path';
-import { SequelizeStorage, Umzug } from 'umzug';
+import { migrator as makeMigrator, seeder as makeSeeder } from '../lib/db/migrator';
 import { createSequelize, DEFAULT_DATABASE_URL } from '../lib/db/sequelize';
 
 const sequelize = createSequelize(process.env.DATABASE_URL ?? DEFAULT_DATABASE_URL);
-const root = path.resolve(__dirname, '..');
-
-const migrator = new Umzug({
-  migrations: { glob: ['migrations/*.ts', { cwd: root }] },
-  context: sequelize.getQueryInterface(),
-  storage: new SequelizeStorage({ sequelize, tableName: 'schema_migrations', modelName: 'SchemaMigration' }),
-  logger: undefined,
-});
-
-const seeder = new Umzug({
-  migrations: { glob: ['seeders/*.ts', { cwd: root }] },
-  context: sequelize.getQueryInterface(),
-  storage: new SequelizeStorage({ sequelize, tableName: 'schema_seeds', modelName: 'SchemaSeed' }),
-  logger: undefined,
-});
+const migrator = makeMigrator(sequelize);
+const seeder = makeSeeder(sequelize);
 
 async function main() {
   const cmd = process.argv[2] ?? 'migrate';

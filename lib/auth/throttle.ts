@@ -38,14 +38,14 @@ export async function recordFailure(keys: string[], now = new Date()) {
   for (const key of keys) {
     // One statement per key: a concurrent failure cannot be lost between read and write.
     await sequelize.query(
-      `INSERT INTO sign_in_attempts (key, failures, first_failure_at, locked_until) VALUES (:key, 1, :now, NULL)
+      `INSERT INTO sign_in_attempts (key, failures, first_failure_at, locked_until) VALUES (:key, 1, :now::timestamptz, NULL)
        ON CONFLICT (key) DO UPDATE SET
-         failures = CASE WHEN sign_in_attempts.first_failure_at < :windowStart OR sign_in_attempts.locked_until < :now
+         failures = CASE WHEN sign_in_attempts.first_failure_at < :windowStart::timestamptz OR sign_in_attempts.locked_until < :now::timestamptz
                          THEN 1 ELSE sign_in_attempts.failures + 1 END,
-         first_failure_at = CASE WHEN sign_in_attempts.first_failure_at < :windowStart OR sign_in_attempts.locked_until < :now
-                         THEN :now ELSE sign_in_attempts.first_failure_at END,
-         locked_until = CASE WHEN sign_in_attempts.failures + 1 >= :max AND NOT (sign_in_attempts.first_failure_at < :windowStart)
-                         THEN :lockUntil ELSE NULL END`,
+         first_failure_at = CASE WHEN sign_in_attempts.first_failure_at < :windowStart::timestamptz OR sign_in_attempts.locked_until < :now::timestamptz
+                         THEN :now::timestamptz ELSE sign_in_attempts.first_failure_at END,
+         locked_until = CASE WHEN sign_in_attempts.failures + 1 >= :max AND NOT (sign_in_attempts.first_failure_at < :windowStart::timestamptz)
+                         THEN :lockUntil::timestamptz ELSE NULL END`,
       { replacements: { key, now, windowStart: new Date(now.getTime() - WINDOW_MS), max: env.SIGN_IN_MAX_FAILURES, lockUntil } },
     );
   }

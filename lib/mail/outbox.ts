@@ -51,16 +51,24 @@ async function deliver(row: MailOutbox) {
 }
 
 export async function deliverDueMail(opts: { ids?: number[]; ignoreSchedule?: boolean } = {}) {
-  const where: Record<string | symbol, unknown> = { status: { [Op.in]: ['queued', 'failed'] } };
-  if (!opts.ignoreSchedule) where.nextAttemptAt = { [Op.lte]: new Date() };
-  if (opts.ids) where.id = { [Op.in]: opts.ids };
-  // SKIP LOCKED lets several app servers drain the outbox without sending a mail twice.
-  return sequelize.transaction(async (transaction) => {
-    const rows = await MailOutbox.findAll({ where, order: [['id', 'ASC']], limit: 20, lock: transaction.LOCK.UPDATE, skipLocked: true, transaction });
-    let sent = 0;
-    for (const row of rows) if (await deliver(row)) sent++;
-    return { attempted: rows.length, sent };
-  });
+  // Claim due rows with a short lease (next_attempt_at pushed a minute ahead) under SKIP LOCKED, so several
+  // app servers can drain the outbox without sending a mail twice; send outside the claiming transaction.
+  const [claimed] = await sequelize.query(
+    `UPDATE mail_outbox SET next_attempt_at = now() + interval '60 seconds', updated_at = now()
+      WHERE id IN (SELECT id FROM mail_outbox
+                    WHERE status IN ('queued', 'failed')
+                      AND (:ignoreSchedule OR next_attempt_at <= now())
+                      AND (:noIds OR id IN (:ids))
+                    ORDER BY id LIMIT 20 FOR UPDATE SKIP LOCKED)
+      RETURNING id`,
+    { replacements: { ignoreSchedule: !!opts.ignoreSchedule, noIds: !opts.ids?.length, ids: opts.ids?.length ? opts.ids : [0] } },
+  );
+  const ids = (claimed as { id: number }[]).map((r) => r.id);
+  if (!ids.length) return { attempted: 0, sent: 0 };
+  const rows = await MailOutbox.findAll({ where: { id: { [Op.in]: ids } }, order: [['id', 'ASC']] });
+  let sent = 0;
+  for (const row of rows) if (await deliver(row)) sent++;
+  return { attempted: rows.length, sent };
 }
 
 export function deliverSoon(ids: number[]) {
