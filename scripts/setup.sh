@@ -26,7 +26,7 @@ if [ "${#need_apt[@]}" -gt 0 ]; then
   if [ "$(id -u)" != 0 ]; then echo "[setup] missing Debian packages: ${need_apt[*]} (run as root, or install them)" >&2; exit 1; fi
   log "installing from Debian: ${need_apt[*]}"
   apt-get update -qq
-  DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends "${need_apt[@]}" >/dev/null
+  DEBIAN_FRONTEND=noninteractive apt-get install -y -qq "${need_apt[@]}" >/dev/null
 fi
 
 if [ ! -d node_modules ] || [ package-lock.json -nt node_modules/.package-lock.json ]; then
@@ -53,6 +53,8 @@ if [ -z "${NEXTAUTH_SECRET:-}" ]; then
   export NEXTAUTH_SECRET
 fi
 
+export SMTP_PORT="${SMTP_PORT:-2525}" MAIL_SINK_PORT="${MAIL_SINK_PORT:-2580}" S3_PORT="${S3_PORT:-4569}"
+export S3_ENDPOINT="${S3_ENDPOINT:-http://127.0.0.1:$S3_PORT}"
 bash scripts/fakes.sh start >/dev/null
 export MAIL_SINK_URL="${MAIL_SINK_URL:-http://127.0.0.1:${MAIL_SINK_PORT:-2580}}"
 if [ "$ANODYNE_MODE" = test ]; then export S3_BUCKET="${S3_BUCKET:-anodyne-test}"; fi
