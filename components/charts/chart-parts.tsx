@@ -1,0 +1,76 @@
+// Shared look for every chart: colours come from the theme's CSS variables so light and dark both read well.
+import * as React from 'react';
+import { cn } from '@/lib/utils';
+
+export const COLORS = {
+  curve: 'var(--curve)',
+  ink: 'var(--ink)',
+  muted: 'var(--muted)',
+  rule: 'var(--rule)',
+  sheet: 'var(--sheet)',
+  heater: 'var(--heater)',
+  dcline: 'var(--dcline)',
+  acline: 'var(--acline)',
+  limit: 'var(--limit)',
+} as const;
+
+export const TICK = { fill: COLORS.muted, fontSize: 11 } as const;
+export const AXIS_LINE = { stroke: COLORS.rule } as const;
+export const GRID = { stroke: COLORS.rule, strokeDasharray: '2 4', strokeOpacity: 0.8 } as const;
+export const AXIS_LABEL = { fill: COLORS.muted, fontSize: 11 } as const;
+
+/** Plain-number tick text: 0.5, 1, 250, 10k (no float noise). */
+export function tickNumber(v: number): string {
+  if (!Number.isFinite(v)) return '';
+  const abs = Math.abs(v);
+  if (abs >= 1000) return `${Number((v / 1000).toPrecision(3))}k`;
+  return String(Number(v.toPrecision(4)));
+}
+
+/** A rounded-up axis end: 1, 2, 2.5, 5 times a power of ten. */
+export function niceCeil(v: number): number {
+  if (!(v > 0) || !Number.isFinite(v)) return 1;
+  const p = 10 ** Math.floor(Math.log10(v));
+  const m = v / p;
+  const step = m <= 1 ? 1 : m <= 2 ? 2 : m <= 2.5 ? 2.5 : m <= 5 ? 5 : 10;
+  return step * p;
+}
+
+export type LegendEntry = { label: string; color: string; kind: 'line' | 'dashed' | 'dot' | 'bar' | 'thick' };
+
+export function ChartLegend({ entries, className }: { entries: LegendEntry[]; className?: string }) {
+  return (
+    <ul className={cn('flex flex-wrap items-center gap-x-4 gap-y-1 px-1 text-xs text-muted', className)} aria-label="Legend">
+      {entries.map((e) => (
+        <li key={e.label} className="inline-flex items-center gap-1.5">
+          <svg width="22" height="10" aria-hidden className="shrink-0">
+            {e.kind === 'dot' ? (
+              <circle cx="11" cy="5" r="4" fill={e.color} stroke={COLORS.sheet} strokeWidth="1" />
+            ) : e.kind === 'bar' ? (
+              <rect x="6" y="0" width="10" height="10" fill={e.color} rx="1" />
+            ) : (
+              <line
+                x1="1"
+                y1="5"
+                x2="21"
+                y2="5"
+                stroke={e.color}
+                strokeWidth={e.kind === 'thick' ? 2.5 : 1.75}
+                strokeDasharray={e.kind === 'dashed' ? '4 3' : undefined}
+              />
+            )}
+          </svg>
+          <span className="text-ink">{e.label}</span>
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+export function EmptyChart({ height, children }: { height: number; children: React.ReactNode }) {
+  return (
+    <div style={{ height }} className="flex items-center justify-center rounded-md border border-dashed border-rule text-sm text-muted">
+      {children}
+    </div>
+  );
+}

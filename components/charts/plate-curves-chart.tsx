@@ -1,0 +1,179 @@
+'use client';
+
+// Plate curve family Ia(Va) with load lines, Pa(max) and the operating point. It only draws what it is given.
+import { CartesianGrid, ComposedChart, Line, ReferenceDot, ResponsiveContainer, Scatter, XAxis, YAxis } from 'recharts';
+import { formatEng } from '@/lib/units';
+import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceCeil, tickNumber, type LegendEntry } from './chart-parts';
+
+/** Currents in A, voltages in V (the chart shows mA). */
+export type VaIa = { va: number; ia: number };
+export type PlateCurveSeries = { label: string; vg: number; points: VaIa[]; emphasis?: boolean };
+export type MeasuredPoint = { va: number; ia: number; vg: number };
+
+export type PlateCurvesChartProps = {
+  curves: PlateCurveSeries[];
+  paMax?: VaIa[];
+  dcLoadLine?: VaIa[];
+  acLoadLine?: VaIa[];
+  operatingPoint?: VaIa;
+  measured?: MeasuredPoint[];
+  /** axis end in V; automatic when absent */
+  vaMax?: number;
+  /** axis end in A; automatic when absent */
+  iaMax?: number;
+  height?: number;
+  /** faded while a newer result is being computed */
+  stale?: boolean;
+  className?: string;
+};
+
+type Row = { va: number; ia: number };
+const toMa = (pts: VaIa[] | undefined): Row[] => (pts ?? []).map((p) => ({ va: p.va, ia: p.ia * 1e3 }));
+const maxOf = (pts: VaIa[] | undefined, key: 'va' | 'ia') => (pts ?? []).reduce((m, p) => (p[key] > m ? p[key] : m), 0);
+
+/** Grid-voltage label as practitioners write it on a curve: "−1.5 V". */
+export function gridLabel(vg: number): string {
+  return formatEng(vg, 'V', 3).replace('-', '−');
+}
+
+/** Turns the engine's `analysis.plot.curves` into chart series (drawing data only). */
+export function curveSeriesFromPlot(curves: { gridVoltage: number; bias: boolean; points: VaIa[] }[]): PlateCurveSeries[] {
+  return curves.map((c) => ({ label: gridLabel(c.gridVoltage), vg: c.gridVoltage, points: c.points, emphasis: c.bias }));
+}
+
+export function plateAxisRange(p: Pick<PlateCurvesChartProps, 'curves' | 'dcLoadLine' | 'acLoadLine' | 'operatingPoint' | 'measured' | 'vaMax' | 'iaMax'>) {
+  const vaData = Math.max(maxOf(p.dcLoadLine, 'va'), ...p.curves.map((c) => maxOf(c.points, 'va')), maxOf(p.measured, 'va'));
+  const vaMax = p.vaMax ?? niceCeil(vaData || 100);
+  let ia = Math.max(maxOf(p.dcLoadLine, 'ia'), maxOf(p.acLoadLine, 'ia'), 2 * (p.operatingPoint?.ia ?? 0), maxOf(p.measured, 'ia'));
+  if (!(ia > 0)) ia = Math.max(...p.curves.map((c) => maxOf(c.points, 'ia')), 1e-3);
+  const iaMax = p.iaMax ?? niceCeil(ia * 1.08);
+  return { vaMax, iaMax };
+}
+
+// Where a curve leaves the plot (or ends): the spot for its grid-voltage label.
+function labelSpot(points: Row[], vaMax: number, iaMaxMa: number): Row | null {
+  let last: Row | null = null;
+  for (const p of points) {
+    if (p.va > vaMax) break;
+    if (p.ia > iaMaxMa) {
+      return last ? { va: last.va, ia: Math.min(last.ia, iaMaxMa) } : null;
+    }
+    last = p;
+  }
+  if (!last || last.ia < iaMaxMa * 0.04) return null;
+  return last;
+}
+
+export function PlateCurvesChart(props: PlateCurvesChartProps) {
+  const { curves, paMax, dcLoadLine, acLoadLine, operatingPoint, measured, height = 420, stale = false, className } = props;
+  if (curves.length === 0 && !dcLoadLine?.length) return <EmptyChart height={height}>No curves to draw yet.</EmptyChart>;
+  const { vaMax, iaMax } = plateAxisRange(props);
+  const iaMaxMa = iaMax * 1e3;
+  const legend: LegendEntry[] = [
+    { label: 'Plate curves (Vg)', color: COLORS.curve, kind: 'line' },
+    ...(curves.some((c) => c.emphasis) ? [{ label: 'Bias curve', color: COLORS.ink, kind: 'thick' as const }] : []),
+    ...(dcLoadLine?.length ? [{ label: 'DC load line', color: COLORS.dcline, kind: 'thick' as const }] : []),
+    ...(acLoadLine?.length ? [{ label: 'AC load line', color: COLORS.acline, kind: 'thick' as const }] : []),
+    ...(paMax?.length ? [{ label: 'Pa(max)', color: COLORS.limit, kind: 'dashed' as const }] : []),
+    ...(operatingPoint ? [{ label: 'Operating point', color: COLORS.heater, kind: 'dot' as const }] : []),
+    ...(measured?.length ? [{ label: 'Measured', color: COLORS.ink, kind: 'dot' as const }] : []),
+  ];
+  const ordered = [...curves].sort((a, b) => Number(!!a.emphasis) - Number(!!b.emphasis));
+  return (
+    <figure
+      className={className}
+      data-testid="plate-curves-chart"
+      data-stale={stale ? 'true' : 'false'}
+      data-op={operatingPoint ? `${operatingPoint.va.toFixed(2)},${(operatingPoint.ia * 1e3).toFixed(4)}` : ''}
+      aria-label="Plate curves: plate current against plate voltage"
+    >
+      <div style={{ height }} className={stale ? 'opacity-60 transition-opacity' : 'transition-opacity'}>
+        <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 600, height }}>
+          <ComposedChart margin={{ top: 12, right: 24, bottom: 22, left: 6 }}>
+            <CartesianGrid {...GRID} />
+            <XAxis
+              type="number"
+              dataKey="va"
+              domain={[0, vaMax]}
+              allowDataOverflow
+              tickCount={7}
+              tick={TICK}
+              axisLine={AXIS_LINE}
+              tickLine={AXIS_LINE}
+              tickFormatter={tickNumber}
+              label={{ value: 'Plate voltage Va (V)', position: 'insideBottom', offset: -12, ...AXIS_LABEL }}
+            />
+            <YAxis
+              type="number"
+              dataKey="ia"
+              domain={[0, iaMaxMa]}
+              allowDataOverflow
+              tickCount={6}
+              tick={TICK}
+              axisLine={AXIS_LINE}
+              tickLine={AXIS_LINE}
+              tickFormatter={tickNumber}
+              width={52}
+              label={{ value: 'Plate current Ia (mA)', angle: -90, position: 'insideLeft', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
+            />
+            {ordered.map((c) => (
+              <Line
+                key={`c${c.vg}${c.emphasis ? 'b' : ''}`}
+                data={toMa(c.points)}
+                dataKey="ia"
+                name={c.label}
+                type="linear"
+                stroke={c.emphasis ? COLORS.ink : COLORS.curve}
+                strokeWidth={c.emphasis ? 2.25 : 1.1}
+                dot={false}
+                activeDot={false}
+                isAnimationActive={false}
+                legendType="none"
+              />
+            ))}
+            {paMax?.length ? (
+              <Line data={toMa(paMax)} dataKey="ia" name="Pa(max)" type="monotone" stroke={COLORS.limit} strokeWidth={1.6} strokeDasharray="6 4" dot={false} activeDot={false} isAnimationActive={false} legendType="none" />
+            ) : null}
+            {dcLoadLine?.length ? (
+              <Line data={toMa(dcLoadLine)} dataKey="ia" name="DC load line" type="linear" stroke={COLORS.dcline} strokeWidth={2} dot={false} activeDot={false} isAnimationActive={false} legendType="none" />
+            ) : null}
+            {acLoadLine?.length ? (
+              <Line data={toMa(acLoadLine)} dataKey="ia" name="AC load line" type="linear" stroke={COLORS.acline} strokeWidth={2} strokeDasharray="10 3" dot={false} activeDot={false} isAnimationActive={false} legendType="none" />
+            ) : null}
+            {measured?.length ? (
+              <Scatter data={toMa(measured)} dataKey="ia" name="Measured" fill={COLORS.ink} shape={MeasuredMark} isAnimationActive={false} legendType="none" />
+            ) : null}
+            {ordered.map((c) => {
+              const spot = labelSpot(toMa(c.points), vaMax, iaMaxMa);
+              return spot ? (
+                <ReferenceDot
+                  key={`l${c.vg}${c.emphasis ? 'b' : ''}`}
+                  x={spot.va}
+                  y={spot.ia}
+                  r={0}
+                  ifOverflow="hidden"
+                  label={{ value: c.label, position: spot.ia >= iaMaxMa * 0.97 ? 'insideTopRight' : 'insideBottomRight', fill: c.emphasis ? COLORS.ink : COLORS.muted, fontSize: 10, offset: 4 }}
+                />
+              ) : null;
+            })}
+            {operatingPoint ? (
+              <ReferenceDot x={operatingPoint.va} y={operatingPoint.ia * 1e3} r={6} fill={COLORS.heater} stroke={COLORS.sheet} strokeWidth={2} ifOverflow="extendDomain" />
+            ) : null}
+          </ComposedChart>
+        </ResponsiveContainer>
+      </div>
+      <ChartLegend entries={legend} className="mt-1" />
+    </figure>
+  );
+}
+
+function MeasuredMark(props: { cx?: number; cy?: number }) {
+  const { cx, cy } = props;
+  if (cx === undefined || cy === undefined) return <g />;
+  return (
+    <g stroke={COLORS.ink} strokeWidth={1.3}>
+      <line x1={cx - 3} y1={cy - 3} x2={cx + 3} y2={cy + 3} />
+      <line x1={cx - 3} y1={cy + 3} x2={cx + 3} y2={cy - 3} />
+    </g>
+  );
+}

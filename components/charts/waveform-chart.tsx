@@ -1,0 +1,84 @@
+'use client';
+
+// Input (grid drive) and output voltage over one period at the chosen drive. Separate axes: the output is
+// usually tens of times larger than the input.
+import { CartesianGrid, ComposedChart, Line, ReferenceLine, ResponsiveContainer, XAxis, YAxis } from 'recharts';
+import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, tickNumber } from './chart-parts';
+
+export type WaveformChartProps = {
+  /** seconds */
+  t: number[];
+  /** volts, input drive (grid) */
+  input: number[];
+  /** volts, output swing about its DC level */
+  output: number[];
+  height?: number;
+  stale?: boolean;
+};
+
+function symmetric(values: number[]): number {
+  const m = values.reduce((a, v) => Math.max(a, Math.abs(v)), 0);
+  return m > 0 ? Number((m * 1.1).toPrecision(2)) : 1;
+}
+
+export function WaveformChart({ t, input, output, height = 280, stale = false }: WaveformChartProps) {
+  if (t.length === 0) return <EmptyChart height={height}>No waveform: set a drive amplitude.</EmptyChart>;
+  const data = t.map((ti, i) => ({ ms: ti * 1e3, input: input[i] ?? 0, output: output[i] ?? 0 }));
+  const inMax = symmetric(input);
+  const outMax = symmetric(output);
+  const msEnd = data[data.length - 1]?.ms ?? 1;
+  return (
+    <figure data-testid="waveform-chart" data-stale={stale ? 'true' : 'false'} aria-label="Input and output waveforms">
+      <div style={{ height }} className={stale ? 'opacity-60' : undefined}>
+        <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 600, height }}>
+          <ComposedChart data={data} margin={{ top: 12, right: 8, bottom: 22, left: 6 }}>
+            <CartesianGrid {...GRID} />
+            <XAxis
+              type="number"
+              dataKey="ms"
+              domain={[0, msEnd]}
+              tick={TICK}
+              axisLine={AXIS_LINE}
+              tickLine={AXIS_LINE}
+              tickFormatter={tickNumber}
+              label={{ value: 'Time (ms)', position: 'insideBottom', offset: -12, ...AXIS_LABEL }}
+            />
+            <YAxis
+              yAxisId="in"
+              type="number"
+              domain={[-inMax, inMax]}
+              tick={{ ...TICK, fill: COLORS.dcline }}
+              axisLine={AXIS_LINE}
+              tickLine={AXIS_LINE}
+              tickFormatter={tickNumber}
+              width={48}
+              label={{ value: 'Input (V)', angle: -90, position: 'insideLeft', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
+            />
+            <YAxis
+              yAxisId="out"
+              orientation="right"
+              type="number"
+              domain={[-outMax, outMax]}
+              tick={{ ...TICK, fill: COLORS.acline }}
+              axisLine={AXIS_LINE}
+              tickLine={AXIS_LINE}
+              tickFormatter={tickNumber}
+              width={52}
+              label={{ value: 'Output (V)', angle: 90, position: 'insideRight', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
+            />
+            <ReferenceLine yAxisId="in" y={0} stroke={COLORS.rule} />
+            <Line yAxisId="in" dataKey="input" type="monotone" stroke={COLORS.dcline} strokeWidth={1.75} dot={false} activeDot={false} isAnimationActive={false} />
+            <Line yAxisId="out" dataKey="output" type="monotone" stroke={COLORS.acline} strokeWidth={2.25} dot={false} activeDot={false} isAnimationActive={false} />
+          </ComposedChart>
+        </ResponsiveContainer>
+      </div>
+      <ChartLegend
+        className="mt-1"
+        entries={[
+          { label: 'Input (left axis)', color: COLORS.dcline, kind: 'line' },
+          { label: 'Output (right axis)', color: COLORS.acline, kind: 'thick' },
+        ]}
+      />
+    </figure>
+  );
+}
