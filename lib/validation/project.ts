@@ -1,0 +1,133 @@
+import { z } from 'zod';
+import { quantity } from './quantity';
+import { stageBodySchema } from './stage';
+
+export const PROJECT_STATUSES = ['draft', 'in-review', 'approved', 'changes-requested'] as const;
+export type ProjectStatus = (typeof PROJECT_STATUSES)[number];
+
+const key = z
+  .string()
+  .trim()
+  .min(1, 'Give it a short key.')
+  .max(40, 'Keep the key under 40 characters.')
+  .regex(/^[A-Za-z0-9+_.-]+$/, 'Use letters, digits, + - _ . only (e.g. B+2).');
+
+export const supplyNodeSchema = z.object({
+  key,
+  name: z.string().trim().min(1, 'Name the node.').max(80),
+  /** resistance between the previous node (or the raw supply) and this one; 0 for the reservoir node */
+  droppingResistor: quantity('Ω', { min: 0 }),
+  filterCapacitor: quantity('F', { min: 0 }),
+});
+
+export const heaterSupplySchema = z.object({
+  key,
+  name: z.string().trim().min(1, 'Name the heater supply.').max(80),
+  voltage: quantity('V', { positive: true, max: 200 }),
+});
+
+function uniqueKeys(items: { key: string }[], ctx: z.RefinementCtx, field: string) {
+  const seen = new Set<string>();
+  items.forEach((item, i) => {
+    if (seen.has(item.key)) ctx.addIssue({ code: 'custom', path: [field, i, 'key'], message: `The key '${item.key}' is used twice.` });
+    seen.add(item.key);
+  });
+}
+
+export const projectSupplySchema = z
+  .object({
+    /** raw B+ at the rectifier, unloaded equivalent source voltage */
+    rawVoltage: quantity('V', { positive: true, max: 2000 }).optional(),
+    /** transformer + rectifier equivalent series resistance */
+    sourceResistance: quantity('Ω', { min: 0 }).default(0),
+    nodes: z.array(supplyNodeSchema).max(12, 'At most 12 B+ nodes.').default([]),
+    heaters: z.array(heaterSupplySchema).max(6, 'At most 6 heater supplies.').default([]),
+  })
+  .superRefine((s, ctx) => {
+    uniqueKeys(s.nodes, ctx, 'nodes');
+    uniqueKeys(s.heaters, ctx, 'heaters');
+    if (s.nodes.length > 0 && s.rawVoltage === undefined) {
+      ctx.addIssue({ code: 'custom', path: ['rawVoltage'], message: 'Give the raw B+ voltage for the nodes to be solved.' });
+    }
+  });
+export type ProjectSupply = z.output<typeof projectSupplySchema>;
+export type ProjectSupplyInput = z.input<typeof projectSupplySchema>;
+
+const projectName = z.string().trim().min(1, 'Give the project a name.').max(120, 'Keep the name under 120 characters.');
+const description = z.string().trim().max(4000, 'Keep the description under 4000 characters.');
+
+export const createProjectSchema = z.object({
+  name: projectName,
+  description: description.optional(),
+  supply: projectSupplySchema.optional(),
+});
+export type CreateProjectInput = z.input<typeof createProjectSchema>;
+
+export const benchTolerancesSchema = z.record(
+  z.string().min(1).max(60),
+  z.number({ message: 'must be a number' }).finite().nonnegative('must not be negative'),
+);
+
+export const updateProjectSchema = z
+  .object({
+    version: z.number({ message: 'Send the version you read.' }).int().positive(),
+    name: projectName.optional(),
+    description: description.optional(),
+    archived: z.boolean().optional(),
+    supply: projectSupplySchema.optional(),
+    benchTolerances: benchTolerancesSchema.optional(),
+    watchers: z.array(z.number().int().positive()).max(50).optional(),
+  })
+  .refine((v) => Object.keys(v).some((k) => k !== 'version'), { message: 'Nothing to change.' });
+export type UpdateProjectInput = z.input<typeof updateProjectSchema>;
+
+/** rename form on the project page */
+export const renameProjectSchema = z.object({ name: projectName, description: description.optional() });
+export type RenameProjectInput = z.input<typeof renameProjectSchema>;
+
+const booleanQuery = z.enum(['true', 'false', 'all']).default('false');
+
+export const listProjectsQuerySchema = z.object({
+  search: z.string().trim().max(120).optional(),
+  status: z.union([z.enum(PROJECT_STATUSES), z.literal('')]).optional(),
+  archived: booleanQuery,
+});
+export type ListProjectsQuery = z.output<typeof listProjectsQuerySchema>;
+
+export const stageMetaSchema = z.object({
+  name: z.string().trim().min(1, 'Name the stage.').max(120),
+  supplyNode: z.string().trim().max(40).nullable().optional(),
+  position: z.number().int().positive().optional(),
+  tubeModelId: z.number().int().positive().nullable().optional(),
+});
+
+/** POST /api/projects/{id}/stages: the stage body (engine inputs with tubeId) plus its name and place in the chain. */
+export const createStageSchema = z.intersection(stageBodySchema, stageMetaSchema);
+export type CreateStageInput = z.input<typeof createStageSchema>;
+
+/**
+ * PATCH /api/stages/{id}: `inputs` is a partial stage body merged shallowly over the stored one and then
+ * validated in full with stageBodySchema (field errors keyed by the stage body's own paths, e.g. bias.cathodeResistor).
+ */
+export const updateStageSchema = z
+  .object({
+    version: z.number({ message: 'Send the version you read.' }).int().positive(),
+    name: stageMetaSchema.shape.name.optional(),
+    supplyNode: stageMetaSchema.shape.supplyNode,
+    position: stageMetaSchema.shape.position,
+    tubeModelId: stageMetaSchema.shape.tubeModelId,
+    inputs: z.record(z.string(), z.unknown()).optional(),
+  })
+  .refine((v) => Object.keys(v).some((k) => k !== 'version'), { message: 'Nothing to change.' });
+export type UpdateStageInput = z.input<typeof updateStageSchema>;
+
+export const deleteStageQuerySchema = z.object({ version: z.coerce.number().int().positive('Send the version you read.') });
+
+/** chain view: the chain input level in V rms (engineering notation allowed: 100m) */
+export const chainQuerySchema = z.object({
+  input: quantity('V', { positive: true, max: 100 }).default(0.1),
+});
+export type ChainQuery = z.output<typeof chainQuerySchema>;
+
+export const CURVE_KINDS = ['plate', 'transfer', 'response', 'waveform'] as const;
+export const curvesQuerySchema = z.object({ kind: z.enum(CURVE_KINDS, { message: `Choose one of ${CURVE_KINDS.join(', ')}.` }) });
