@@ -65,8 +65,9 @@ export function brent(f: (x: number) => number, a: number, b: number, tol = 1e-1
 }
 
 /**
- * Root of a non-decreasing f on [lo, hi] (f(lo) ≤ 0 ≤ f(hi) assumed). A guess narrows the bracket first,
- * which is what makes sample-by-sample waveform solving cheap.
+ * Root of a non-decreasing f on [lo, hi] (f(lo) ≤ 0 ≤ f(hi) assumed). With a guess it runs a secant
+ * iteration kept inside the shrinking bracket (2–4 evaluations when the guess comes from the previous
+ * waveform sample); if a step leaves the bracket it falls back to Brent on the bracket found so far.
  */
 export function solveIncreasing(
   f: (x: number) => number,
@@ -76,19 +77,33 @@ export function solveIncreasing(
   tol = 1e-13,
 ): number {
   if (!(hi > lo)) return lo;
-  if (guess !== undefined && guess > lo && guess < hi) {
-    const step = Math.max(Math.abs(guess) * 1e-3, tol * 1e3, (hi - lo) * 1e-9);
-    const a = Math.max(lo, guess - step);
-    const b = Math.min(hi, guess + step);
-    const fa = f(a);
-    if (fa <= 0) {
-      const fb = f(b);
-      if (fb >= 0) return brent(f, a, b, tol);
-      return brent(f, b, hi, tol);
+  if (guess === undefined || !(guess >= lo && guess <= hi)) return brent(f, lo, hi, tol);
+  let a = lo;
+  let b = hi;
+  let x0 = guess;
+  let f0 = f(x0);
+  if (f0 === 0) return x0;
+  if (f0 < 0) a = x0;
+  else b = x0;
+  const step = Math.max(Math.abs(x0) * 1e-7, tol * 10);
+  let x1 = f0 < 0 ? Math.min(x0 + step, hi) : Math.max(x0 - step, lo);
+  for (let iter = 0; iter < 30; iter++) {
+    const f1 = f(x1);
+    if (f1 === 0) return x1;
+    if (f1 < 0) a = Math.max(a, x1);
+    else b = Math.min(b, x1);
+    const denom = f1 - f0;
+    let x2 = denom !== 0 ? x1 - (f1 * (x1 - x0)) / denom : Number.NaN;
+    if (!(x2 > a && x2 < b)) {
+      if (b - a <= tol) return 0.5 * (a + b);
+      return brent(f, a, b, tol);
     }
-    return brent(f, lo, a, tol);
+    if (Math.abs(x2 - x1) <= tol) return x2;
+    x0 = x1;
+    f0 = f1;
+    x1 = x2;
   }
-  return brent(f, lo, hi, tol);
+  return brent(f, a, b, tol);
 }
 
 /** Expands hi (doubling) until f(hi) ≥ 0 for a non-decreasing f; returns null if none is found. */

@@ -6,7 +6,7 @@ import { checkRatings } from '../ratings';
 import { cutoff, firstOrderLowPass, responseCurve, type ResponseFactor } from '../response';
 import { expandUpper, solveIncreasing } from '../solve';
 import type { HeadroomLimit, StageAnalysis } from '../types';
-import { largestTrue, mean, sineDrive, steadyState } from './cycle';
+import { firstCrossing, mean, sineDrive, steadyState } from './cycle';
 import { solveNetwork } from './network';
 import { screenParts } from './pentode-amplifier';
 import { checkIdle, operatingPointOf, stagePlot } from './single-tube';
@@ -154,10 +154,10 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   if (screen && screen.ac !== screen.dc) keys.push('ig2');
   const cycleAt = (amp: number) => {
     const drive = sineDrive(amp);
-    return steadyState<PPMeans, PPSample[]>(keys, m0, (m) => {
+    return steadyState<PPMeans, PPSample[]>(keys, m0, (m, count) => {
       const samples: PPSample[] = [];
       let prev = seed;
-      for (const vin of drive) {
+      for (const vin of count ? sineDrive(amp, count) : drive) {
         prev = solvePP(net, vin, m, prev);
         samples.push(prev);
       }
@@ -182,10 +182,10 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
 
   const solve = (a: number) => solvePP(net, a, m0, seed);
   const candidates: Array<[HeadroomLimit, number | null]> = [
-    ['grid-conduction', largestTrue((a) => { const s = solve(a); return gridBias + a - s.vk < 0; }, input.supply)],
-    ['plate-saturation', largestTrue((a) => { const s = solve(a); return plate1(s) - s.vk > 0.15 * vak0; }, input.supply)],
+    ['grid-conduction', firstCrossing((a) => gridBias + a - solve(a).vk, input.supply)],
+    ['plate-saturation', firstCrossing((a) => { const s = solve(a); return 0.15 * vak0 - (plate1(s) - s.vk); }, input.supply)],
   ];
-  if (input.class === 'A') candidates.push(['cutoff', largestTrue((a) => solve(a).i2 > 0.01 * op.ia, input.supply)]);
+  if (input.class === 'A') candidates.push(['cutoff', firstCrossing((a) => 0.01 * op.ia - solve(a).i2, input.supply)]);
   let best: [HeadroomLimit, number] = ['none', input.supply];
   for (const [name, value] of candidates) if (value !== null && value < best[1]) best = [name, value];
   const swing = Math.abs(at(best[1]) - at(-best[1])) / 2;

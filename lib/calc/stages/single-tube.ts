@@ -14,8 +14,8 @@ import {
   type ResponseFactor,
 } from '../response';
 import type { HeadroomLimit, LargeSignal, OperatingPoint, StageAnalysis, StagePlot } from '../types';
-import { largestTrue, mean, SAMPLES_PER_CYCLE, sineDrive, steadyState } from './cycle';
-import { activeMeans, outputVoltage, solveNetwork, type Means, type SampleState, type SingleTubeNetwork } from './network';
+import { firstCrossing, mean, SAMPLES_PER_CYCLE, sineDrive, steadyState } from './cycle';
+import { activeMeans, extrapolate, outputVoltage, solveNetwork, type Means, type SampleState, type SingleTubeNetwork } from './network';
 
 export type CommonStageFields = {
   supply: number;
@@ -142,20 +142,23 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
   // large signal
   const amp = input.drive.amplitude;
   const drive = sineDrive(amp);
-  const runCycle = (m: Means) => {
+  const runCycle = (m: Means, count?: number) => {
+    const wave = count ? sineDrive(amp, count) : drive;
     const samples: SampleState[] = [];
-    let prev: SampleState = op;
     let ia = 0;
     let ig2 = 0;
     let ik = 0;
-    for (const vin of drive) {
-      prev = solveNetwork(net, vin, m, 0, prev);
+    for (let k = 0; k < wave.length; k++) {
+      const vin = wave[k] ?? 0;
+      const n = samples.length;
+      const guess = n === 0 ? op : extrapolate(samples[n - 1] as SampleState, samples[n - 2], samples[n - 3]);
+      const prev = solveNetwork(net, vin, m, 0, guess);
       samples.push(prev);
       ia += prev.ia;
       ig2 += prev.ig2;
       ik += prev.ik;
     }
-    const n = drive.length;
+    const n = wave.length;
     return { means: { ia: ia / n, ig2: ig2 / n, ik: ik / n }, result: { samples, out: samples.map((s) => outputVoltage(net, s)) } as CycleResult };
   };
   const steady = amp > 0 ? steadyState<Means, CycleResult>(activeMeans(net), m0, runCycle) : runCycle(m0);
@@ -250,9 +253,9 @@ function headroomOf(net: SingleTubeNetwork, m: Means, op: SampleState, supply: n
   const limit = supply;
   const vak0 = op.vp - op.vk;
   const candidates: Array<[HeadroomLimit, number | null]> = [
-    ['grid-conduction', largestTrue((a) => { const s = solve(a); return s.vg - s.vk < 0; }, limit)],
-    ['cutoff', largestTrue((a) => solve(-a).ia > 0.01 * op.ia, limit)],
-    ['plate-saturation', largestTrue((a) => { const s = solve(a); return s.vp - s.vk > 0.15 * vak0; }, limit)],
+    ['grid-conduction', firstCrossing((a) => { const s = solve(a); return s.vg - s.vk; }, limit)],
+    ['cutoff', firstCrossing((a) => 0.01 * op.ia - solve(-a).ia, limit)],
+    ['plate-saturation', firstCrossing((a) => { const s = solve(a); return 0.15 * vak0 - (s.vp - s.vk); }, limit)],
   ];
   let best: [HeadroomLimit, number] = ['none', limit];
   for (const [name, value] of candidates) if (value !== null && value < best[1]) best = [name, value];
