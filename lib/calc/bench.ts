@@ -264,6 +264,8 @@ function compare(opts: {
 }
 
 const RANK: Record<BenchVerdict, number> = { pass: 0, check: 1, fail: 2 };
+// Causes before symptoms: the current and the dissipation say most about what is wrong.
+const SUMMARY_ORDER: BenchQuantity[] = ['plateCurrent', 'plateDissipation', 'screenDissipation', 'heaterVoltage', 'supplyVoltage', 'screenVoltage', 'plateCathodeVoltage', 'plateVoltage', 'cathodeVoltage'];
 
 export function worstVerdict(verdicts: BenchVerdict[]): BenchVerdict {
   return verdicts.reduce<BenchVerdict>((w, v) => (RANK[v] > RANK[w] ? v : w), 'pass');
@@ -312,7 +314,7 @@ export function evaluateBenchCheck(design: BenchDesign, readings: BenchReadings,
   const verdict = worstVerdict(rows.map((x) => x.status));
   const summary = rows
     .filter((x) => x.status !== 'pass' && x.advice)
-    .sort((a, b) => RANK[b.status] - RANK[a.status])
+    .sort((a, b) => RANK[b.status] - RANK[a.status] || SUMMARY_ORDER.indexOf(a.key) - SUMMARY_ORDER.indexOf(b.key))
     .map((x) => x.advice!);
   return {
     verdict,
