@@ -25,8 +25,13 @@ export type ChainStage = {
   name: string;
   position: number;
   supplyNode: string | null;
-  /** the validated engine input, with the library tube in place */
-  input: StageInput;
+  /** the validated engine input, with the library tube in place; null when it could not be built */
+  input: StageInput | null;
+  /** why there is no input (e.g. the tube has no model) */
+  inputError?: { code: string; message: string } | null;
+  /** topology and assumed supply from the stored stage, used when input is null */
+  topology?: string;
+  assumedSupply?: number;
   heater?: ChainHeater;
 };
 
@@ -155,7 +160,8 @@ function calcErrorOf(err: unknown): { code: string; message: string } {
   return { code: 'no-solution', message: err instanceof Error ? err.message : 'The stage could not be analysed.' };
 }
 
-function tryAnalyze(input: StageInput): { analysis: StageAnalysis | null; error: { code: string; message: string } | null } {
+function tryAnalyze(input: StageInput | null, inputError?: { code: string; message: string } | null): { analysis: StageAnalysis | null; error: { code: string; message: string } | null } {
+  if (!input) return { analysis: null, error: inputError ?? { code: 'invalid-input', message: 'The stage has no usable inputs.' } };
   try {
     return { analysis: analyzeStage(input), error: null };
   } catch (err) {
@@ -189,13 +195,18 @@ export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, option
   const nodes = supplyIn.nodes ?? [];
   const nodeIndex = new Map(nodes.map((n, i) => [n.key, i]));
 
-  const onNode = (s: ChainStage) => (s.supplyNode !== null && nodeIndex.has(s.supplyNode) ? nodeIndex.get(s.supplyNode)! : -1);
+  // Stages analysed at their own assumed supplies: the starting point, and the answer when there is no supply to solve.
+  let analyses = stages.map((s) => tryAnalyze(s.input, s.inputError));
+  // A stage that cannot be analysed even at its own supply is left out of the supply solution (and said so).
+  const onNode = (s: ChainStage) => {
+    const i = stages.indexOf(s);
+    return s.input && !analyses[i]?.error && s.supplyNode !== null && nodeIndex.has(s.supplyNode) ? nodeIndex.get(s.supplyNode)! : -1;
+  };
   for (const s of stages) {
     if (s.supplyNode !== null && !nodeIndex.has(s.supplyNode)) warnings.push(`${s.name} draws from '${s.supplyNode}', which is not a node of the supply; it keeps its own supply voltage.`);
+    else if (s.supplyNode !== null && onNode(s) < 0 && nodes.length) warnings.push(`${s.name} cannot be analysed, so its current is left out of the supply solution.`);
   }
-
-  // Stages analysed at their own assumed supplies: the starting point, and the answer when there is no supply to solve.
-  let analyses = stages.map((s) => tryAnalyze(s.input));
+  const onNodeIndex = stages.map((s) => onNode(s));
   let solvedAt: (number | null)[] = stages.map(() => null);
   let supply: ChainSupplyResult | null = null;
   let supplyError: { code: string; message: string } | null = null;
@@ -207,12 +218,12 @@ export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, option
     const currentsAt = (volts: number[] | null) => {
       const nodeCurrents = new Array<number>(nodes.length).fill(0);
       const results = stages.map((s, i) => {
-        const k = onNode(s);
-        if (k < 0) return analyses[i]!;
+        const k = onNodeIndex[i]!;
+        if (k < 0 || !s.input) return analyses[i]!;
         const v = volts ? volts[k]! : s.input.supply;
         if (!(v > 0)) return { analysis: null, error: { code: 'cutoff', message: `The node ${nodes[k]!.key} has collapsed to ${v.toFixed(1)} V: the supply cannot deliver this current.` } };
         const r = tryAnalyze({ ...s.input, supply: v } as StageInput);
-        if (r.analysis) nodeCurrents[k] += stageSupplyCurrent(s.input, r.analysis);
+        if (r.analysis) nodeCurrents[k]! += stageSupplyCurrent(s.input, r.analysis);
         return r;
       });
       return { nodeCurrents, results };
@@ -224,11 +235,11 @@ export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, option
     let residual = Infinity;
     let iterations = 0;
     let converged = false;
-    let failed = state.results.find((r, i) => onNode(stages[i]!) >= 0 && r.error);
+    let failed = state.results.find((r, i) => onNodeIndex[i]! >= 0 && r.error);
     while (!failed && iterations < maxIterations) {
       iterations++;
       state = currentsAt(volts);
-      failed = state.results.find((r, i) => onNode(stages[i]!) >= 0 && r.error);
+      failed = state.results.find((r, i) => onNodeIndex[i]! >= 0 && r.error);
       if (failed) break;
       const target = solveLadder(ladder, state.nodeCurrents).voltages;
       const step = Math.max(0, ...target.map((t, i) => Math.abs(t - volts[i]!)));
@@ -251,7 +262,7 @@ export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, option
         warnings.push(supplyError.message);
       }
       const final = solveLadder(ladder, state.nodeCurrents);
-      solvedAt = stages.map((s) => (onNode(s) >= 0 ? final.voltages[onNode(s)]! : null));
+      solvedAt = onNodeIndex.map((k) => (k >= 0 ? final.voltages[k]! : null));
       supply = {
         rawVoltage: ladder.rawVoltage,
         sourceResistance: ladder.sourceResistance,
@@ -275,7 +286,7 @@ export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, option
             currentOut: through - own,
             drop: n.droppingResistor * through,
             resistorPower: n.droppingResistor * through * through,
-            stageIds: stages.filter((s) => onNode(s) === i).map((s) => s.id),
+            stageIds: stages.filter((_, j) => onNodeIndex[j] === i).map((s) => s.id),
           };
         }),
       };
@@ -288,7 +299,7 @@ export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, option
   for (let i = 0; i < stages.length; i++) {
     const s = stages[i]!;
     const { analysis, error } = analyses[i]!;
-    const before = cumulative;
+    const before: number | null = cumulative;
     const gain = analysis ? analysis.smallSignal.gain : null;
     cumulative = before !== null && gain !== null ? before * Math.abs(gain) : null;
     const maxDrive = analysis ? analysis.largeSignal.headroom.maxDrive : null;
@@ -298,11 +309,11 @@ export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, option
       stageId: s.id,
       name: s.name,
       position: s.position,
-      topology: s.input.topology,
+      topology: s.input?.topology ?? s.topology ?? 'unknown',
       supplyNode: s.supplyNode,
-      assumedSupply: s.input.supply,
+      assumedSupply: s.input?.supply ?? s.assumedSupply ?? 0,
       solvedSupply: solvedAt[i] ?? null,
-      supplyCurrent: analysis ? stageSupplyCurrent(s.input, analysis) : null,
+      supplyCurrent: analysis && s.input ? stageSupplyCurrent(s.input, analysis) : null,
       gain,
       gainDb: analysis ? analysis.smallSignal.gainDb : null,
       cumulativeGain: cumulative,
@@ -327,11 +338,12 @@ export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, option
   const unassignedHeaters: ChainResult['unassignedHeaters'] = [];
   for (const s of stages) {
     const h = s.heater;
-    const designation = h?.designation ?? s.input.tube.name ?? 'tube';
+    const designation = h?.designation ?? s.input?.tube.name ?? 'tube';
+    const topology = s.input?.topology ?? s.topology ?? '';
     let placed = false;
     if (h) {
       for (const total of heaters) {
-        const share = heaterShare(h, s.input.topology, total.voltage);
+        const share = heaterShare(h, topology, total.voltage);
         if (share !== null) {
           total.current += share;
           total.power += share * total.voltage;

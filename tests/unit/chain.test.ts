@@ -63,7 +63,10 @@ describe('chain with real stages iterated to agreement', () => {
   it('satisfies Kirchhoff at each node with currents re-computed independently at the solved voltages', () => {
     const sup = result.supply!;
     // each stage analysed again at its solved node voltage, outside the solver
-    const drawn = result.stages.map((s, i) => stageSupplyCurrent(stages[i]!.input, analyzeStage({ ...stages[i]!.input, supply: s.solvedSupply! })));
+    const drawn = result.stages.map((s, i) => {
+      const input = stages[i]!.input!;
+      return stageSupplyCurrent(input, analyzeStage({ ...input, supply: s.solvedSupply! }));
+    });
     const [b1, b2, b3] = sup.nodes;
     const i1 = drawn[2]!, i2 = drawn[1]!, i3 = drawn[0]!;
     // KCL: current in = own stages + current out; KVL across each resistor: ΔV = R × I_in. Tolerance: 0.01 V on volts.
