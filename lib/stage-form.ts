@@ -1,0 +1,285 @@
+// Pure helpers between the stage editor's form (text as the user typed it) and the stage body the API takes
+// (SI numbers, validated by stageBodySchema). No React here, so it is unit-tested on its own.
+import type { z } from 'zod';
+import { stageBodySchema, type StageBody, type Topology } from '@/lib/validation/stage';
+import { formatEng } from '@/lib/units';
+
+export const TOPOLOGIES: { value: Topology; label: string }[] = [
+  { value: 'common-cathode', label: 'Common cathode (voltage amplifier)' },
+  { value: 'cathode-follower', label: 'Cathode follower' },
+  { value: 'pentode-amplifier', label: 'Pentode voltage amplifier' },
+  { value: 'single-ended-output', label: 'Single-ended output' },
+  { value: 'push-pull-output', label: 'Push-pull output' },
+];
+
+export function topologyLabel(t: string): string {
+  return TOPOLOGIES.find((x) => x.value === t)?.label ?? t;
+}
+
+/** Every value is kept as the text the user typed; the schema turns it into SI numbers. */
+export type StageFormValues = {
+  name: string;
+  supplyNode: string;
+  tubeId: string;
+  tubeModelId: string;
+  topology: Topology;
+  supply: string;
+  gridResistor: string;
+  sourceResistance: string;
+  heaterElevation: string;
+  derating: string;
+  drive: { amplitude: string; frequency: string };
+  plateResistor: string;
+  cathodeResistor: string;
+  primaryImpedance: string;
+  primaryResistance: string;
+  plateToPlateImpedance: string;
+  class: 'A' | 'AB';
+  bias: {
+    kind: 'cathode' | 'fixed' | 'dc-coupled' | 'self';
+    cathodeResistor: string;
+    cathodeBypass: string;
+    fixedBias: string;
+    gridVoltage: string;
+    biasResistor: string;
+  };
+  screen: { kind: 'fixed' | 'resistor'; supply: string; resistor: string; bypass: string };
+  load: { enabled: boolean; resistance: string; couplingCapacitor: string };
+};
+
+/** Units shown beside each field (the schema records the same unit in each quantity's meta; a unit test checks). */
+export const FIELD_UNITS: Record<string, string> = {
+  supply: 'V',
+  gridResistor: 'Ω',
+  sourceResistance: 'Ω',
+  heaterElevation: 'V',
+  derating: '',
+  'drive.amplitude': 'V',
+  'drive.frequency': 'Hz',
+  plateResistor: 'Ω',
+  cathodeResistor: 'Ω',
+  primaryImpedance: 'Ω',
+  primaryResistance: 'Ω',
+  plateToPlateImpedance: 'Ω',
+  'bias.cathodeResistor': 'Ω',
+  'bias.cathodeBypass': 'F',
+  'bias.fixedBias': 'V',
+  'bias.gridVoltage': 'V',
+  'bias.biasResistor': 'Ω',
+  'screen.supply': 'V',
+  'screen.resistor': 'Ω',
+  'screen.bypass': 'F',
+  'load.resistance': 'Ω',
+  'load.couplingCapacitor': 'F',
+};
+
+/** SI number → the text a practitioner would type: 4700 → '4.7k', 2.2e-8 → '22n', -1.5 → '-1.5'. */
+export function toFieldText(value: unknown): string {
+  if (typeof value !== 'number' || !Number.isFinite(value)) return typeof value === 'string' ? value : '';
+  if (value === 0) return '0';
+  const abs = Math.abs(value);
+  // plain numbers read better than milli-prefixes for ratios and volts around 1
+  if (abs >= 0.1 && abs < 1000) return String(Number(value.toPrecision(6)));
+  return formatEng(value, '', 6).replace(/\s+/g, '').replace('µ', 'u');
+}
+
+// Starting values for a new stage (common practice for small-signal and output stages; the designer types over them).
+const BASE: StageFormValues = {
+  name: '',
+  supplyNode: '',
+  tubeId: '',
+  tubeModelId: '',
+  topology: 'common-cathode',
+  supply: '300',
+  gridResistor: '1M',
+  sourceResistance: '0',
+  heaterElevation: '0',
+  derating: '0.7',
+  drive: { amplitude: '0.5', frequency: '1k' },
+  plateResistor: '100k',
+  cathodeResistor: '22k',
+  primaryImpedance: '5k',
+  primaryResistance: '0',
+  plateToPlateImpedance: '6k6',
+  class: 'AB',
+  bias: { kind: 'cathode', cathodeResistor: '1k5', cathodeBypass: '22u', fixedBias: '-2', gridVoltage: '100', biasResistor: '1k' },
+  screen: { kind: 'resistor', supply: '250', resistor: '470k', bypass: '100n' },
+  load: { enabled: true, resistance: '470k', couplingCapacitor: '22n' },
+};
+
+const TOPOLOGY_DEFAULTS: Record<Topology, (v: StageFormValues) => StageFormValues> = {
+  'common-cathode': (v) => ({ ...v, plateResistor: '100k', bias: { ...v.bias, kind: 'cathode', cathodeResistor: '1k5', cathodeBypass: '22u' }, load: { ...v.load, enabled: true }, drive: { ...v.drive, amplitude: '0.5' } }),
+  'cathode-follower': (v) => ({ ...v, plateResistor: '0', cathodeResistor: '22k', bias: { ...v.bias, kind: 'self', biasResistor: '1k' }, load: { ...v.load, enabled: true }, drive: { ...v.drive, amplitude: '1' } }),
+  'pentode-amplifier': (v) => ({ ...v, plateResistor: '220k', bias: { ...v.bias, kind: 'cathode', cathodeResistor: '2k2', cathodeBypass: '22u' }, screen: { ...v.screen, kind: 'resistor', resistor: '1M', bypass: '100n' }, load: { ...v.load, enabled: true }, drive: { ...v.drive, amplitude: '0.1' } }),
+  'single-ended-output': (v) => ({ ...v, supply: '300', primaryImpedance: '5k', primaryResistance: '150', bias: { ...v.bias, kind: 'cathode', cathodeResistor: '250', cathodeBypass: '100u' }, screen: { ...v.screen, kind: 'fixed', supply: '280' }, load: { ...v.load, enabled: false }, drive: { ...v.drive, amplitude: '5' } }),
+  'push-pull-output': (v) => ({ ...v, supply: '400', plateToPlateImpedance: '6k6', primaryResistance: '200', class: 'AB', bias: { ...v.bias, kind: 'fixed', fixedBias: '-38' }, screen: { ...v.screen, kind: 'fixed', supply: '380' }, load: { ...v.load, enabled: false }, drive: { ...v.drive, amplitude: '10' } }),
+};
+
+export function newStageDefaults(topology: Topology = 'common-cathode', patch: Partial<StageFormValues> = {}): StageFormValues {
+  return { ...TOPOLOGY_DEFAULTS[topology]({ ...BASE, topology }), ...patch };
+}
+
+/** On a new stage, switching topology swaps in that topology's starting values, keeping name, tube and supply. */
+export function switchTopology(values: StageFormValues, topology: Topology): StageFormValues {
+  return TOPOLOGY_DEFAULTS[topology]({ ...values, topology });
+}
+
+export const BIAS_KINDS: Record<Topology, { value: StageFormValues['bias']['kind']; label: string }[]> = {
+  'common-cathode': [
+    { value: 'cathode', label: 'Cathode bias (resistor)' },
+    { value: 'fixed', label: 'Fixed bias (negative supply)' },
+  ],
+  'cathode-follower': [
+    { value: 'self', label: 'Self-biased (tapped cathode resistor)' },
+    { value: 'dc-coupled', label: 'DC-coupled grid' },
+  ],
+  'pentode-amplifier': [
+    { value: 'cathode', label: 'Cathode bias (resistor)' },
+    { value: 'fixed', label: 'Fixed bias (negative supply)' },
+  ],
+  'single-ended-output': [
+    { value: 'cathode', label: 'Cathode bias (resistor)' },
+    { value: 'fixed', label: 'Fixed bias (negative supply)' },
+  ],
+  'push-pull-output': [
+    { value: 'cathode', label: 'Cathode bias (shared resistor)' },
+    { value: 'fixed', label: 'Fixed bias (negative supply)' },
+  ],
+};
+
+/** Which optional sections a topology has. */
+export function sectionsFor(topology: Topology, tubeIsPentode: boolean) {
+  return {
+    plateResistor: topology === 'common-cathode' || topology === 'pentode-amplifier' || topology === 'cathode-follower',
+    cathodeResistor: topology === 'cathode-follower',
+    primaryImpedance: topology === 'single-ended-output',
+    plateToPlateImpedance: topology === 'push-pull-output',
+    primaryResistance: topology === 'single-ended-output' || topology === 'push-pull-output',
+    pushPullClass: topology === 'push-pull-output',
+    // a pentode or beam tetrode in an output stage needs its screen supply
+    screen: topology === 'pentode-amplifier' || ((topology === 'single-ended-output' || topology === 'push-pull-output') && tubeIsPentode),
+    load: topology === 'common-cathode' || topology === 'pentode-amplifier' || topology === 'cathode-follower',
+  };
+}
+
+const blankToNull = (s: string) => (s.trim() === '' ? null : s.trim());
+const text = (s: string) => s.trim();
+
+/**
+ * Builds the stage body (what stageBodySchema parses) from the form: only the fields of the chosen topology.
+ * Empty optional text becomes "absent"; an empty bypass capacitor means "no bypass" (null).
+ */
+export function toStageBodyInput(v: StageFormValues, opts: { tubeIsPentode?: boolean } = {}): Record<string, unknown> {
+  const s = sectionsFor(v.topology, opts.tubeIsPentode ?? false);
+  const tubeId = /^\d+$/.test(v.tubeId) ? Number(v.tubeId) : v.tubeId === '' ? undefined : v.tubeId;
+  const body: Record<string, unknown> = {
+    topology: v.topology,
+    tubeId,
+    supply: text(v.supply),
+    gridResistor: text(v.gridResistor),
+    sourceResistance: text(v.sourceResistance) || '0',
+    heaterElevation: text(v.heaterElevation) || '0',
+    derating: text(v.derating) || '0.7',
+    drive: { amplitude: text(v.drive.amplitude) || '0', frequency: text(v.drive.frequency) || '1k' },
+  };
+  if (s.plateResistor) body.plateResistor = v.topology === 'cathode-follower' ? text(v.plateResistor) || '0' : text(v.plateResistor);
+  if (s.cathodeResistor) body.cathodeResistor = text(v.cathodeResistor);
+  if (s.primaryImpedance) body.primaryImpedance = text(v.primaryImpedance);
+  if (s.plateToPlateImpedance) body.plateToPlateImpedance = text(v.plateToPlateImpedance);
+  if (s.primaryResistance) body.primaryResistance = text(v.primaryResistance) || '0';
+  if (s.pushPullClass) body.class = v.class;
+  if (v.topology === 'cathode-follower') {
+    body.bias = v.bias.kind === 'dc-coupled' ? { kind: 'dc-coupled', gridVoltage: text(v.bias.gridVoltage) } : { kind: 'self', biasResistor: text(v.bias.biasResistor) };
+  } else {
+    body.bias = v.bias.kind === 'fixed' ? { kind: 'fixed', fixedBias: text(v.bias.fixedBias) } : { kind: 'cathode', cathodeResistor: text(v.bias.cathodeResistor), cathodeBypass: blankToNull(v.bias.cathodeBypass) };
+  }
+  if (s.screen) {
+    body.screen =
+      v.screen.kind === 'resistor'
+        ? { kind: 'resistor', resistor: text(v.screen.resistor), bypass: blankToNull(v.screen.bypass) }
+        : text(v.screen.supply) === ''
+          ? { kind: 'fixed' }
+          : { kind: 'fixed', supply: text(v.screen.supply) };
+  }
+  if (s.load && v.load.enabled) body.load = { resistance: text(v.load.resistance), couplingCapacitor: text(v.load.couplingCapacitor) };
+  return body;
+}
+
+export type FieldErrorMap = Record<string, string>;
+
+/** Zod issues → one message per dotted path (the first one wins). */
+export function issuesToFieldErrors(issues: readonly z.core.$ZodIssue[]): FieldErrorMap {
+  const out: FieldErrorMap = {};
+  for (const issue of issues) {
+    const key = issue.path.map(String).join('.') || '_form';
+    if (!(key in out)) out[key] = issue.message;
+  }
+  return out;
+}
+
+export type ParsedStage = { ok: true; body: StageBody } | { ok: false; errors: FieldErrorMap };
+
+export function parseStageForm(v: StageFormValues, opts: { tubeIsPentode?: boolean } = {}): ParsedStage {
+  const input = toStageBodyInput(v, opts);
+  if (input.tubeId === undefined) return { ok: false, errors: { tubeId: 'Choose a tube from the library.' } };
+  const r = stageBodySchema.safeParse(input);
+  return r.success ? { ok: true, body: r.data } : { ok: false, errors: issuesToFieldErrors(r.error.issues) };
+}
+
+/** Stored stage inputs (SI numbers) → form text. Missing parts fall back to the topology's starting values. */
+export function fromStageInputs(
+  inputs: Record<string, unknown>,
+  meta: { name: string; supplyNode: string | null; tubeTypeId: number; tubeModelId: number | null; topology: string },
+): StageFormValues {
+  const topology = (TOPOLOGIES.some((t) => t.value === meta.topology) ? meta.topology : 'common-cathode') as Topology;
+  const base = newStageDefaults(topology);
+  const i = inputs as Record<string, any>;
+  const t = (x: unknown, fallback: string) => (x === undefined ? fallback : x === null ? '' : toFieldText(x));
+  const bias = (i.bias ?? {}) as Record<string, unknown>;
+  const screen = i.screen as Record<string, unknown> | undefined;
+  const load = i.load as Record<string, unknown> | undefined;
+  return {
+    ...base,
+    name: meta.name,
+    supplyNode: meta.supplyNode ?? '',
+    tubeId: String(meta.tubeTypeId ?? i.tubeId ?? ''),
+    tubeModelId: meta.tubeModelId ? String(meta.tubeModelId) : '',
+    topology,
+    supply: t(i.supply, base.supply),
+    gridResistor: t(i.gridResistor, base.gridResistor),
+    sourceResistance: t(i.sourceResistance, base.sourceResistance),
+    heaterElevation: t(i.heaterElevation, base.heaterElevation),
+    derating: t(i.derating, base.derating),
+    drive: { amplitude: t(i.drive?.amplitude, base.drive.amplitude), frequency: t(i.drive?.frequency, base.drive.frequency) },
+    plateResistor: t(i.plateResistor, base.plateResistor),
+    cathodeResistor: t(i.cathodeResistor, base.cathodeResistor),
+    primaryImpedance: t(i.primaryImpedance, base.primaryImpedance),
+    primaryResistance: t(i.primaryResistance, base.primaryResistance),
+    plateToPlateImpedance: t(i.plateToPlateImpedance, base.plateToPlateImpedance),
+    class: i.class === 'A' ? 'A' : i.class === 'AB' ? 'AB' : base.class,
+    bias: {
+      ...base.bias,
+      kind: (typeof bias.kind === 'string' ? bias.kind : base.bias.kind) as StageFormValues['bias']['kind'],
+      cathodeResistor: t(bias.cathodeResistor, base.bias.cathodeResistor),
+      cathodeBypass: bias.kind === 'cathode' ? t(bias.cathodeBypass ?? null, '') : base.bias.cathodeBypass,
+      fixedBias: t(bias.fixedBias, base.bias.fixedBias),
+      gridVoltage: t(bias.gridVoltage, base.bias.gridVoltage),
+      biasResistor: t(bias.biasResistor, base.bias.biasResistor),
+    },
+    screen: screen
+      ? {
+          kind: screen.kind === 'resistor' ? 'resistor' : 'fixed',
+          supply: t(screen.supply, screen.kind === 'fixed' ? '' : base.screen.supply),
+          resistor: t(screen.resistor, base.screen.resistor),
+          bypass: screen.kind === 'resistor' ? t(screen.bypass ?? null, '') : base.screen.bypass,
+        }
+      : base.screen,
+    load: load ? { enabled: true, resistance: t(load.resistance, base.load.resistance), couplingCapacitor: t(load.couplingCapacitor, base.load.couplingCapacitor) } : { ...base.load, enabled: false },
+  };
+}
+
+/** CSV of drawing data (already computed by the engine): one header row, SI units named in the header. */
+export function toCsv(header: string[], rows: (number | string)[][]): string {
+  const cell = (c: number | string) => (typeof c === 'number' ? String(c) : /[",\n]/.test(c) ? `"${c.replace(/"/g, '""')}"` : c);
+  return [header.join(','), ...rows.map((r) => r.map(cell).join(','))].join('\n') + '\n';
+}
