@@ -1,0 +1,122 @@
+// Cross-check of lib/calc against ngspice on the same circuits (fixtures in tests/fixtures/stages).
+// Tolerances are the brief's acceptance limits (engineering judgement): op 0.5 %, gain 1 %, THD 5 % relative or
+// 0.02 % absolute, output power 2 %. Both sides use Koren's equations; the netlists come from lib/calc/spice.ts.
+import { execFile, execFileSync } from 'node:child_process';
+import { mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { analyzeStage, stageNetlist, type StageAnalysis } from '@/lib/calc';
+import { stageInputSchema, type StageInput } from '@/lib/validation/stage';
+
+const FIXTURES = path.resolve(__dirname, '../fixtures/stages');
+
+function haveNgspice(): boolean {
+  try {
+    execFileSync('ngspice', ['-v'], { stdio: 'pipe' });
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+const spiceAvailable = haveNgspice();
+if (!spiceAvailable && !process.env.CI_ALLOW_NO_SPICE) {
+  throw new Error('ngspice is not on PATH (apt-get install -y ngspice); set CI_ALLOW_NO_SPICE=1 to skip these checks.');
+}
+
+export type SpiceResult = {
+  values: Record<string, number>;
+  fourier: Record<string, { thdPercent: number; magnitudes: number[] }>;
+};
+
+export function parseSpiceOutput(text: string): SpiceResult {
+  const values: Record<string, number> = {};
+  for (const m of text.matchAll(/^\s*res_(\w+)\s*=\s*([-+0-9.eE]+)/gm)) values[m[1] as string] = Number(m[2]);
+  const fourier: SpiceResult['fourier'] = {};
+  const blocks = text.split(/RESULT fourier=/).slice(1);
+  for (const block of blocks) {
+    const name = block.split(/\s/)[0] ?? '';
+    const thd = /THD:\s*([-+0-9.eE]+)\s*%/.exec(block);
+    const magnitudes: number[] = [];
+    for (const row of block.matchAll(/^\s*(\d+)\s+[-+0-9.eE]+\s+([-+0-9.eE]+)\s+[-+0-9.eE]+\s+[-+0-9.eE]+\s+[-+0-9.eE]+\s*$/gm)) {
+      magnitudes[Number(row[1])] = Number(row[2]);
+    }
+    fourier[name] = { thdPercent: thd ? Number(thd[1]) : Number.NaN, magnitudes };
+  }
+  return { values, fourier };
+}
+
+export function runNgspice(netlist: string, dir: string, name: string): Promise<string> {
+  const file = path.join(dir, `${name}.cir`);
+  writeFileSync(file, netlist);
+  return new Promise((resolve, reject) => {
+    execFile('ngspice', ['-b', file], { maxBuffer: 16 * 1024 * 1024, timeout: 120_000 }, (err, stdout, stderr) => {
+      if (err) reject(new Error(`ngspice failed on ${name}: ${err.message}\n${stderr}`));
+      else resolve(stdout);
+    });
+  });
+}
+
+type Case = { name: string; input: StageInput; analysis: StageAnalysis; spice?: SpiceResult };
+
+const cases: Case[] = readdirSync(FIXTURES)
+  .filter((f) => f.endsWith('.json'))
+  .sort()
+  .map((f) => {
+    const input = stageInputSchema.parse(JSON.parse(readFileSync(path.join(FIXTURES, f), 'utf8')));
+    return { name: f.replace(/\.json$/, ''), input, analysis: analyzeStage(input) };
+  });
+
+const rel = (a: number, b: number) => Math.abs(a - b) / Math.max(Math.abs(b), 1e-30);
+
+describe.skipIf(!spiceAvailable)('lib/calc against ngspice', () => {
+  beforeAll(async () => {
+    const dir = mkdtempSync(path.join(tmpdir(), 'anodyne-spice-'));
+    const outputs = await Promise.all(cases.map((c) => runNgspice(stageNetlist(c.input), dir, c.name)));
+    outputs.forEach((text, i) => {
+      const c = cases[i];
+      if (c) c.spice = parseSpiceOutput(text);
+    });
+  }, 300_000);
+
+  it('covers at least 12 circuits and all five topologies', () => {
+    expect(cases.length).toBeGreaterThanOrEqual(12);
+    expect(new Set(cases.map((c) => c.input.topology)).size).toBe(5);
+  });
+
+  describe.each(cases.map((c) => [c.name, c] as const))('%s', (_name, c) => {
+    it('operating point within 0.5 %', () => {
+      const v = c.spice!.values;
+      const op = c.analysis.operatingPoint;
+      expect(rel(op.plateCurrent, v.op_iplate!)).toBeLessThan(0.005);
+      expect(rel(op.plateVoltage, v.op_vplate!)).toBeLessThan(0.005);
+      if (Math.abs(v.op_vcath!) > 1e-3) expect(rel(op.cathodeVoltage, v.op_vcath!)).toBeLessThan(0.005);
+      if (op.screenVoltage !== null) {
+        expect(rel(op.screenVoltage, v.op_vscreen!)).toBeLessThan(0.005);
+        expect(rel(op.screenCurrent!, v.op_iscreen!)).toBeLessThan(0.005);
+      }
+    });
+
+    it('midband gain within 1 % (sign included)', () => {
+      const v = c.spice!.values;
+      const spiceGain = v.ac_gain! * Math.sign(Math.cos(v.ac_phase!));
+      expect(rel(c.analysis.smallSignal.gain, spiceGain)).toBeLessThan(0.01);
+    });
+
+    it('THD within 5 % relative or 0.02 % absolute', () => {
+      const f = c.spice!.fourier.output!;
+      const ours = c.analysis.largeSignal.thdPercent;
+      const ok = rel(ours, f.thdPercent) < 0.05 || Math.abs(ours - f.thdPercent) < 0.02;
+      expect(ok, `THD ${ours.toFixed(4)} % vs ngspice ${f.thdPercent} %`).toBe(true);
+      expect(rel(c.analysis.largeSignal.outputAmplitude, f.magnitudes[1]!)).toBeLessThan(0.01);
+    });
+
+    it.runIf(c.analysis.largeSignal.outputPower !== null)('output power within 2 %', () => {
+      const p = c.spice!.fourier.power!;
+      const load = Number(/load=([-+0-9.eE]+)/.exec(stageNetlist(c.input))?.[1]);
+      const spicePower = p.magnitudes[1]! ** 2 / (2 * load);
+      expect(rel(c.analysis.largeSignal.outputPower!, spicePower)).toBeLessThan(0.02);
+    });
+  });
+});
