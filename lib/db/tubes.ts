@@ -3,6 +3,7 @@ import { Op, QueryTypes, type Transaction, type WhereOptions } from 'sequelize';
 import { ApiError } from '@/lib/api/errors';
 import { can } from '@/lib/auth/policy';
 import type { CurrentUser } from '@/lib/auth/session';
+import * as calc from '@/lib/calc';
 import type { Tube } from '@/lib/calc';
 import {
   createTubeSchema,
@@ -462,4 +463,171 @@ export async function listTubeOptions(): Promise<TubeOption[]> {
     family: t.family,
     models: models.filter((m) => m.tubeTypeId === t.id).map((m) => ({ id: m.id, name: m.name, kind: m.kind, isDefault: m.isDefault })),
   }));
+}
+
+// ---------------------------------------------------------------------------------------------------------
+// Curves for the type page and the comparison chart (computed by lib/calc; the browser only draws them).
+
+export type PlotCurve = { gridVoltage: number; bias: boolean; points: { va: number; ia: number }[] };
+export type TypicalCheck = {
+  label: string;
+  source: string;
+  plateVoltage: number;
+  gridVoltage: number;
+  screenVoltage: number | null;
+  datasheetIa: number;
+  modelIa: number;
+  errorPercent: number | null;
+  gm: number;
+  ra: number;
+  mu: number;
+};
+export type TubePlot = {
+  tubeTypeId: number;
+  designation: string;
+  model: { id: number; name: string; kind: ModelRow['kind'] };
+  vaMax: number;
+  screenVoltage: number | null;
+  transferPlateVoltage: number;
+  plateCurves: PlotCurve[];
+  paMax: { va: number; ia: number }[];
+  plateDissipation: number | null;
+  transfer: { vg: number; ia: number }[];
+  typical: TypicalCheck[];
+};
+
+function roundUp(v: number, step: number) {
+  return Math.ceil(v / step) * step;
+}
+
+
+export async function tubePlot(tubeTypeId: number, opts: { modelId?: number; vaMax?: number; screenVoltage?: number } = {}): Promise<TubePlot> {
+  const t = await TubeType.findByPk(tubeTypeId);
+  if (!t) throw new ApiError('not_found', 'No such tube type.');
+  const m = opts.modelId
+    ? await TubeModel.findOne({ where: { id: opts.modelId, tubeTypeId } })
+    : await TubeModel.findOne({ where: { tubeTypeId }, order: [['isDefault', 'DESC'], ['id', 'ASC']] });
+  if (!m) throw new ApiError(opts.modelId ? 'not_found' : 'unprocessable_entity', opts.modelId ? 'No such model for this tube type.' : `${t.designation} has no model yet, so there are no curves to draw.`);
+  const tube = engineTubeFrom(t, m);
+  const engine = calc.tubeModel(tube);
+  const pentode = m.kind === 'koren-pentode';
+  const ratedVa = t.ratings.plateVoltage?.value;
+  const vaMax = opts.vaMax ?? (ratedVa ? Math.min(roundUp(ratedVa * 1.5, 50), 1500) : 500);
+  const typicalVg2 = t.typicalPoints.find((p) => p.screenVoltage)?.screenVoltage;
+  const vg2 = pentode ? (opts.screenVoltage ?? typicalVg2 ?? Math.min(t.ratings.screenVoltage?.value ?? 250, 250)) : 0;
+  const plateCurves = calc.plateCurveFamily(engine, { vaMax, screenVoltage: vg2, points: 61 });
+  const pa = t.ratings.plateDissipation?.value ?? null;
+  const iaTop = Math.max(...plateCurves.flatMap((c) => c.points.map((p) => p.ia)), 1e-6);
+  // Clip the hyperbola to the plotted current range so the chart's axis follows the curves, not the asymptote.
+  const paMax = pa ? calc.paMaxCurve(pa, vaMax, 61).filter((p) => p.ia <= iaTop * 1.15) : [];
+  const transferVa = t.typicalPoints[0]?.plateVoltage ?? Math.min(ratedVa ?? 250, 250);
+  const vgMin = Math.min(...plateCurves.map((c) => c.gridVoltage), -1);
+  const transfer = calc.transferCurve(engine, { plateVoltage: transferVa, screenVoltage: vg2, vgMin, vgMax: 0, points: 61 });
+  const typical: TypicalCheck[] = t.typicalPoints.map((p) => {
+    const pvg2 = pentode ? (p.screenVoltage ?? vg2) : 0;
+    const modelIa = engine.plateCurrent(p.plateVoltage, p.gridVoltage, pvg2);
+    const d = calc.tubeDerivatives(engine, p.plateVoltage, p.gridVoltage, pvg2);
+    return {
+      label: p.label,
+      source: p.source,
+      plateVoltage: p.plateVoltage,
+      gridVoltage: p.gridVoltage,
+      screenVoltage: pentode ? pvg2 : null,
+      datasheetIa: p.plateCurrent,
+      modelIa,
+      errorPercent: p.plateCurrent > 0 ? (modelIa / p.plateCurrent - 1) * 100 : null,
+      gm: d.gm,
+      ra: d.ra,
+      mu: d.mu,
+    };
+  });
+  return {
+    tubeTypeId,
+    designation: t.designation,
+    model: { id: m.id, name: m.name, kind: m.kind },
+    vaMax,
+    screenVoltage: pentode ? vg2 : null,
+    transferPlateVoltage: transferVa,
+    plateCurves,
+    paMax,
+    plateDissipation: pa,
+    transfer,
+    typical,
+  };
+}
+
+export type CompareSeries = {
+  tubeTypeId: number;
+  designation: string;
+  modelName: string;
+  kind: ModelRow['kind'];
+  screenVoltage: number | null;
+  plateCurves: PlotCurve[];
+  transfer: { vg: number; ia: number }[];
+  plateDissipation: number | null;
+};
+
+/** Default-model curves of two or three types on common axes: plate curves to vaMax and transfer curves at 250 V. */
+export async function compareTubes(ids: number[], opts: { vaMax?: number } = {}): Promise<{ vaMax: number; transferPlateVoltage: number; series: CompareSeries[] }> {
+  const unique = [...new Set(ids)];
+  if (unique.length < 2) throw new ApiError('unprocessable_entity', 'Choose two or three different types.', { fieldErrors: { ids: ['Choose two or three different types.'] } });
+  const types = await TubeType.findAll({ where: { id: { [Op.in]: unique } } });
+  if (types.length !== unique.length) throw new ApiError('not_found', 'One of the chosen tube types does not exist.');
+  const rated = Math.max(...types.map((t) => t.ratings.plateVoltage?.value ?? 300));
+  const vaMax = opts.vaMax ?? Math.min(roundUp(rated * 1.25, 50), 1500);
+  const transferVa = 250;
+  const series: CompareSeries[] = [];
+  for (const id of unique) {
+    const t = types.find((x) => x.id === id)!;
+    const m = await TubeModel.findOne({ where: { tubeTypeId: id }, order: [['isDefault', 'DESC'], ['id', 'ASC']] });
+    if (!m) throw new ApiError('unprocessable_entity', `${t.designation} has no model yet, so it cannot be drawn.`, { fieldErrors: { ids: [`${t.designation} has no model.`] } });
+    const engine = calc.tubeModel(engineTubeFrom(t, m));
+    const pentode = m.kind === 'koren-pentode';
+    const vg2 = pentode ? (t.typicalPoints.find((p) => p.screenVoltage)?.screenVoltage ?? 250) : 0;
+    const family = calc.plateCurveFamily(engine, { vaMax, screenVoltage: vg2, points: 41 });
+    // Five curves per type keep an overlay of three types readable.
+    const every = Math.max(1, Math.ceil(family.length / 5));
+    const plateCurves = family.filter((_, i) => i % every === 0);
+    const vgMin = Math.min(...family.map((c) => c.gridVoltage), -1);
+    series.push({
+      tubeTypeId: id,
+      designation: t.designation,
+      modelName: m.name,
+      kind: m.kind,
+      screenVoltage: pentode ? vg2 : null,
+      plateCurves,
+      transfer: calc.transferCurve(engine, { plateVoltage: transferVa, screenVoltage: vg2, vgMin, vgMax: 0, points: 41 }),
+      plateDissipation: t.ratings.plateDissipation?.value ?? null,
+    });
+  }
+  return { vaMax, transferPlateVoltage: transferVa, series };
+}
+
+// ngspice-39 has pwr() but no pwrs(); the subcircuit also calls softplus() and the DGRID grid diode.
+// Kept in step with lib/calc's SPICE prelude (not exported from the engine's public entry yet).
+const SUBCIRCUIT_FILE_PRELUDE = ['.func pwrs(x,y) {sgn(x)*pwr(x,y)}', '.func softplus(x) {x > 30 ? x : ln(1+exp(x))}', '.model DGRID D(IS=1n RS=1 N=1)'];
+
+export function spiceName(designation: string, modelName: string, modelId: number) {
+  const base = `${designation}_${modelName}`.replace(/[^A-Za-z0-9]+/g, '_').replace(/^_+|_+$/g, '').toUpperCase().slice(0, 40);
+  return `${base}_M${modelId}`;
+}
+
+/** A self-contained SPICE include file for one model: helper functions, the grid diode model and the subcircuit. */
+export async function spiceModelFile(tubeTypeId: number, modelId: number) {
+  const t = await TubeType.findByPk(tubeTypeId);
+  if (!t) throw new ApiError('not_found', 'No such tube type.');
+  const m = await TubeModel.findOne({ where: { id: modelId, tubeTypeId } });
+  if (!m) throw new ApiError('not_found', 'No such model for this tube type.');
+  const name = spiceName(t.designation, m.name, m.id);
+  const pins = m.kind === 'koren-pentode' ? 'plate grid1 cathode screen' : 'plate grid cathode';
+  const text = [
+    `* ${t.designation} – ${m.name} (${m.kind}), exported from the Anodyne tube library`,
+    `* Source of the parameters: ${m.source}`,
+    `* Usage: X1 ${pins} ${name}`,
+    `* Model estimates only; confirm by measurement before relying on them.`,
+    ...SUBCIRCUIT_FILE_PRELUDE,
+    calc.tubeSubcircuit(engineTubeFrom(t, m), name),
+    '',
+  ].join('\n');
+  return { name, fileName: `${name.toLowerCase()}.inc`, text };
 }

@@ -1,0 +1,16 @@
+// GET /api/attachments/{id} – download an attachment (datasheet PDF) from object storage
+import { parseParams, withUser } from '@/lib/api/with-user';
+import { attachmentFile } from '@/lib/db/attachments';
+import { tubeIdParamSchema } from '@/lib/validation/tube';
+
+export const GET = withUser('tubes:read', async (_req, { params }) => {
+  const { id } = parseParams(params, tubeIdParamSchema);
+  const file = await attachmentFile(id);
+  return new Response(new Uint8Array(file.body), {
+    headers: {
+      'content-type': file.contentType,
+      'content-length': String(file.body.length),
+      'content-disposition': `attachment; filename="${file.fileName.replace(/["\\\r\n]/g, '_')}"`,
+    },
+  });
+});

@@ -1,0 +1,12 @@
+// GET /api/curve-sets/{id}/file – the uploaded CSV exactly as stored
+import { parseParams, withUser } from '@/lib/api/with-user';
+import { curveSetFile } from '@/lib/db/curve-sets';
+import { tubeIdParamSchema } from '@/lib/validation/tube';
+
+export const GET = withUser('tubes:read', async (_req, { params }) => {
+  const { id } = parseParams(params, tubeIdParamSchema);
+  const file = await curveSetFile(id);
+  return new Response(new Uint8Array(file.body), {
+    headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': `attachment; filename="${file.fileName.replace(/["\\\r\n]/g, '_')}"` },
+  });
+});

@@ -1,0 +1,12 @@
+// POST /api/tubes/{id}/attachments – attach a datasheet PDF (multipart: file, kind?)
+import { NextResponse } from 'next/server';
+import { parseParams, withUser } from '@/lib/api/with-user';
+import { attachDatasheet } from '@/lib/db/attachments';
+import { readUpload } from '@/lib/db/curve-sets';
+import { tubeIdParamSchema } from '@/lib/validation/tube';
+
+export const POST = withUser('tubes:write', async (req, { user, params }) => {
+  const { id } = parseParams(params, tubeIdParamSchema);
+  const { file, fields } = await readUpload(req);
+  return NextResponse.json({ attachment: await attachDatasheet(user, id, file, fields) }, { status: 201 });
+});
