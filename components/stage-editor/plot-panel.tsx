@@ -1,0 +1,115 @@
+'use client';
+
+// The big plate-curve plot and, below it, the other views switched by a segmented control. Drawing only:
+// every series comes from the engine's result.
+import { useState } from 'react';
+import { PlateCurvesChart, curveSeriesFromPlot } from '@/components/charts/plate-curves-chart';
+import { ResponseChart } from '@/components/charts/response-chart';
+import { SpectrumChart } from '@/components/charts/spectrum-chart';
+import { TransferChart } from '@/components/charts/transfer-chart';
+import { WaveformChart } from '@/components/charts/waveform-chart';
+import { Button } from '@/components/ui/button';
+import type { StageAnalysis } from '@/lib/calc';
+import { toCsv } from '@/lib/stage-form';
+import { formatEng } from '@/lib/units';
+import { Segmented } from './segmented';
+
+export type SecondaryView = 'transfer' | 'waveform' | 'spectrum' | 'response';
+const VIEWS: { value: SecondaryView; label: string }[] = [
+  { value: 'transfer', label: 'Transfer' },
+  { value: 'waveform', label: 'Waveform' },
+  { value: 'spectrum', label: 'Spectrum' },
+  { value: 'response', label: 'Response' },
+];
+
+type Csv = { name: string; text: string };
+
+export function plateCsv(a: StageAnalysis): Csv {
+  const rows: (string | number)[][] = [];
+  for (const c of a.plot.curves) for (const p of c.points) rows.push([c.bias ? 'bias curve' : 'plate curve', c.gridVoltage, p.va, p.ia]);
+  for (const p of a.plot.dcLoadLine) rows.push(['DC load line', '', p.va, p.ia]);
+  for (const p of a.plot.acLoadLine) rows.push(['AC load line', '', p.va, p.ia]);
+  for (const p of a.plot.paMax) rows.push(['Pa(max)', '', p.va, p.ia]);
+  rows.push(['operating point', a.operatingPoint.gridCathodeVoltage, a.plot.operatingPoint.va, a.plot.operatingPoint.ia]);
+  return { name: 'plate-curves', text: toCsv(['series', 'vg_V', 'va_V', 'ia_A'], rows) };
+}
+
+export function secondaryCsv(a: StageAnalysis, view: SecondaryView): Csv {
+  switch (view) {
+    case 'transfer':
+      return { name: 'transfer', text: toCsv(['vg_V', 'ia_A'], a.plot.transfer.map((p) => [p.vg, p.ia])) };
+    case 'waveform': {
+      const w = a.largeSignal.waveform;
+      return { name: 'waveform', text: toCsv(['t_s', 'input_V', 'output_V'], w.t.map((t, i) => [t, w.input[i] ?? '', w.output[i] ?? ''])) };
+    }
+    case 'spectrum':
+      return { name: 'harmonics', text: toCsv(['order', 'amplitude_V', 'level_dB_re_fundamental'], a.largeSignal.harmonics.map((h) => [h.order, h.amplitude, h.db])) };
+    case 'response':
+      return { name: 'response', text: toCsv(['frequency_Hz', 'magnitude_dB', 'phase_deg'], a.smallSignal.response.map((p) => [p.frequency, p.magnitudeDb, p.phaseDeg])) };
+  }
+}
+
+function download(csv: Csv, stem: string) {
+  const url = URL.createObjectURL(new Blob([csv.text], { type: 'text/csv;charset=utf-8' }));
+  const a = document.createElement('a');
+  a.href = url;
+  a.download = `${stem}-${csv.name}.csv`;
+  document.body.appendChild(a);
+  a.click();
+  a.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 1000);
+}
+
+export function PlotPanel({ analysis, stale, fileStem }: { analysis: StageAnalysis; stale: boolean; fileStem: string }) {
+  const [view, setView] = useState<SecondaryView>('transfer');
+  const op = analysis.operatingPoint;
+  const ls = analysis.largeSignal;
+  return (
+    <div className="space-y-4">
+      <div>
+        <div className="mb-1 flex flex-wrap items-baseline justify-between gap-2">
+          <p className="text-xs text-muted" data-testid="op-readout">
+            Operating point{' '}
+            <span className="num text-ink">
+              Va {formatEng(op.plateCathodeVoltage, 'V')} · Ia {formatEng(op.plateCurrent, 'A')} · Vg {formatEng(op.gridCathodeVoltage, 'V')}
+            </span>
+            {analysis.plot.screenVoltage !== null ? <span className="num"> · curves at Vg2 {formatEng(analysis.plot.screenVoltage, 'V')}</span> : null}
+          </p>
+          <Button type="button" variant="ghost" size="sm" onClick={() => download(plateCsv(analysis), fileStem)}>
+            Download CSV
+          </Button>
+        </div>
+        <PlateCurvesChart
+          curves={curveSeriesFromPlot(analysis.plot.curves)}
+          paMax={analysis.plot.paMax}
+          dcLoadLine={analysis.plot.dcLoadLine}
+          acLoadLine={analysis.plot.acLoadLine}
+          operatingPoint={analysis.plot.operatingPoint}
+          height={440}
+          stale={stale}
+        />
+      </div>
+      <div className="border-t border-rule pt-3">
+        <div className="mb-2 flex flex-wrap items-center justify-between gap-2">
+          <Segmented label="Other views" value={view} options={VIEWS} onChange={setView} />
+          <Button type="button" variant="ghost" size="sm" onClick={() => download(secondaryCsv(analysis, view), fileStem)}>
+            Download CSV
+          </Button>
+        </div>
+        {view === 'transfer' ? (
+          <TransferChart points={analysis.plot.transfer} biasPoint={{ vg: op.gridCathodeVoltage, ia: op.plateCurrent }} plateVoltage={op.plateCathodeVoltage} stale={stale} />
+        ) : view === 'waveform' ? (
+          ls.drive > 0 ? <WaveformChart t={ls.waveform.t} input={ls.waveform.input} output={ls.waveform.output} stale={stale} /> : <NoDrive />
+        ) : view === 'spectrum' ? (
+          ls.drive > 0 ? <SpectrumChart harmonics={ls.harmonics} stale={stale} /> : <NoDrive />
+        ) : (
+          <ResponseChart points={analysis.smallSignal.response} lowCutoff={analysis.smallSignal.lowCutoff} highCutoff={analysis.smallSignal.highCutoff} stale={stale} />
+        )}
+      </div>
+    </div>
+  );
+}
+
+function NoDrive() {
+  return <p className="flex h-[280px] items-center justify-center rounded-md border border-dashed border-rule text-sm text-muted">Set a drive amplitude above 0 V to see this view.</p>;
+}

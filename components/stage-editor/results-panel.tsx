@@ -1,0 +1,118 @@
+'use client';
+
+// Operating point, small- and large-signal results and every rating check, as the engine returned them.
+import { StatusBadge } from '@/components/ui/badge';
+import type { RatingCheck, StageAnalysis } from '@/lib/calc';
+import { formatEng } from '@/lib/units';
+import { cn } from '@/lib/utils';
+
+const LIMITED_BY: Record<string, string> = {
+  'grid-conduction': 'grid starts to conduct',
+  cutoff: 'plate current cuts off',
+  'plate-saturation': 'plate bottoms out',
+  none: 'no limit found in range',
+};
+
+function Row({ label, value, testId, title }: { label: string; value: React.ReactNode; testId?: string; title?: string }) {
+  return (
+    <div className="flex items-baseline justify-between gap-3 py-1" title={title}>
+      <dt className="text-xs text-muted">{label}</dt>
+      <dd className="num text-right text-sm" data-testid={testId}>
+        {value}
+      </dd>
+    </div>
+  );
+}
+
+function Section({ title, children }: { title: string; children: React.ReactNode }) {
+  return (
+    <section className="border-t border-rule px-4 py-3 first:border-t-0">
+      <h3 className="mb-1 text-[11px] font-semibold uppercase tracking-wider text-muted">{title}</h3>
+      <dl className="divide-y divide-rule/60">{children}</dl>
+    </section>
+  );
+}
+
+const eng = (v: number | null | undefined, unit: string, digits = 3) => (typeof v === 'number' ? formatEng(v, unit, digits) : '–');
+const pct = (v: number) => `${v < 10 ? v.toFixed(2) : v.toFixed(1)} %`;
+
+export function ResultsPanel({ analysis, stale }: { analysis: StageAnalysis; stale: boolean }) {
+  const op = analysis.operatingPoint;
+  const ss = analysis.smallSignal;
+  const ls = analysis.largeSignal;
+  const pushPull = analysis.topology === 'push-pull-output';
+  return (
+    <div className={cn('transition-opacity', stale && 'opacity-60')} data-testid="results-panel" data-stale={stale ? 'true' : 'false'}>
+      <Section title={pushPull ? 'Operating point (each tube, idle)' : 'Operating point'}>
+        <Row label="Plate to cathode, Vak" value={eng(op.plateCathodeVoltage, 'V')} testId="op-vak" />
+        <Row label="Plate current, Ia" value={eng(op.plateCurrent, 'A')} testId="op-ia" />
+        <Row label="Grid to cathode, Vgk" value={eng(op.gridCathodeVoltage, 'V')} testId="op-vgk" />
+        <Row label="Plate to ground" value={eng(op.plateVoltage, 'V')} />
+        <Row label="Cathode voltage" value={eng(op.cathodeVoltage, 'V')} />
+        {op.screenVoltage !== null ? <Row label="Screen voltage" value={eng(op.screenVoltage, 'V')} /> : null}
+        {op.screenCurrent !== null ? <Row label="Screen current" value={eng(op.screenCurrent, 'A')} /> : null}
+        <Row label="Plate dissipation" value={eng(op.plateDissipation, 'W')} />
+      </Section>
+      <Section title="Small signal">
+        <Row label="Transconductance, gm" value={`${(ss.gm * 1e3).toPrecision(3)} mA/V`} />
+        <Row label="Plate resistance, ra" value={eng(ss.ra, 'Ω')} />
+        <Row label="Amplification factor, µ" value={ss.mu.toPrecision(3)} />
+        <Row label="Voltage gain" value={`${ss.gain.toPrecision(3)} × (${ss.gainDb.toFixed(1)} dB)`} testId="gain" />
+        <Row label="Output impedance" value={eng(ss.outputImpedance, 'Ω')} />
+        <Row label="Low −3 dB point" value={eng(ss.lowCutoff, 'Hz')} />
+        <Row label="High −3 dB point" value={eng(ss.highCutoff, 'Hz')} />
+      </Section>
+      <Section title={`Large signal at ${formatEng(ls.drive, 'V')} peak drive`}>
+        <Row label="Output amplitude" value={`${eng(ls.outputAmplitude, 'V')} peak`} />
+        <Row label="Headroom (max drive)" value={`${eng(ls.headroom.maxDrive, 'V')} peak`} title={LIMITED_BY[ls.headroom.limitedBy]} />
+        <Row label="Limited by" value={<span className="font-sans text-xs">{LIMITED_BY[ls.headroom.limitedBy] ?? ls.headroom.limitedBy}</span>} />
+        <Row label="Output swing at the limit" value={`${eng(ls.headroom.outputSwing, 'V')} peak`} />
+        <Row label="THD (FFT)" value={pct(ls.thdPercent)} testId="thd" />
+        <Row label="THD, 3-point estimate" value={pct(ls.thd3PointPercent)} />
+        <Row label="THD, 5-point estimate" value={pct(ls.thd5PointPercent)} />
+        <Row label="Average current shift" value={eng(ls.dcShift, 'A')} />
+        {ls.outputPower !== null ? <Row label="Output power" value={eng(ls.outputPower, 'W')} testId="output-power" /> : null}
+      </Section>
+      {analysis.warnings.length ? (
+        <section className="border-t border-rule px-4 py-3">
+          <h3 className="mb-1 text-[11px] font-semibold uppercase tracking-wider text-muted">Notes from the calculation</h3>
+          <ul className="list-disc space-y-1 pl-4 text-xs">
+            {analysis.warnings.map((w) => (
+              <li key={w}>{w}</li>
+            ))}
+          </ul>
+        </section>
+      ) : null}
+    </div>
+  );
+}
+
+const BAR: Record<RatingCheck['status'], string> = { ok: 'bg-ok', near: 'bg-near', over: 'bg-over', 'not-checked': 'bg-rule' };
+
+export function RatingsPanel({ ratings, stale }: { ratings: RatingCheck[]; stale: boolean }) {
+  return (
+    <ul className={cn('divide-y divide-rule transition-opacity', stale && 'opacity-60')} data-testid="ratings">
+      {ratings.map((r) => (
+        <li key={r.key} className="px-4 py-2.5" data-rating={r.key} data-status={r.status}>
+          <div className="flex items-baseline justify-between gap-2">
+            <span className="text-sm">{r.label}</span>
+            <StatusBadge status={r.status} />
+          </div>
+          <div className="num mt-0.5 flex items-baseline justify-between gap-2 text-xs text-muted">
+            <span>
+              <span className="text-ink">{formatEng(r.value, r.unit)}</span>
+              {r.limit !== null ? <> of {formatEng(r.limit, r.unit)} max</> : <> · no rating on file</>}
+            </span>
+            {r.percent !== null ? <span className="text-ink">{r.percent.toFixed(0)} %</span> : null}
+          </div>
+          {r.percent !== null ? (
+            <div className="mt-1 h-1 overflow-hidden rounded bg-rule/50" aria-hidden>
+              <div className={cn('h-full', BAR[r.status])} style={{ width: `${Math.min(100, Math.max(2, r.percent))}%` }} />
+            </div>
+          ) : null}
+          {r.caution ? <p className={cn('mt-1 text-xs', r.status === 'over' ? 'text-over' : r.status === 'near' ? 'text-near' : 'text-muted')}>{r.caution}</p> : null}
+        </li>
+      ))}
+    </ul>
+  );
+}

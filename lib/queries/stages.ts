@@ -1,0 +1,145 @@
+'use client';
+
+// React Query options and hooks for the stage editor: live analysis, the stage and its project, saving.
+import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useEffect, useMemo, useState } from 'react';
+import type { StageAnalysis } from '@/lib/calc';
+import type { StageBody } from '@/lib/validation/stage';
+import type { ProjectSupplyRecord } from '@/models/types';
+import { ApiRequestError, fetchJson } from './fetch-json';
+
+/** As the shared projects/stages contract defines it. */
+export type StageDTO = {
+  id: number;
+  projectId: number;
+  position: number;
+  name: string;
+  topology: string;
+  tubeTypeId: number;
+  tubeModelId: number | null;
+  tubeDesignation: string;
+  supplyNode: string | null;
+  inputs: Record<string, unknown>;
+  version: number;
+  analysis: StageAnalysis | null;
+  analysisError: { code: string; message: string } | null;
+  updatedAt: string;
+};
+
+export type ProjectDetail = {
+  id: number;
+  name: string;
+  description: string;
+  status: 'draft' | 'in-review' | 'approved' | 'changes-requested';
+  archived: boolean;
+  version: number;
+  owner: { id: number; displayName: string } | null;
+  supply: ProjectSupplyRecord;
+  benchTolerances: Record<string, number>;
+  updatedAt: string;
+  stages: StageDTO[];
+};
+
+export type AnalyzeBody = StageBody & { tubeModelId?: number };
+
+export const stageKeys = {
+  stage: (id: number) => ['stage', id] as const,
+  project: (id: number) => ['project', id] as const,
+  analyze: (body: AnalyzeBody | null) => ['analyze', body] as const,
+};
+
+export function stageQueryOptions(id: number) {
+  return queryOptions({
+    queryKey: stageKeys.stage(id),
+    queryFn: ({ signal }) => fetchJson<{ stage: StageDTO }>(`/api/stages/${id}`, { signal }).then((r) => r.stage),
+  });
+}
+
+export function projectQueryOptions(id: number) {
+  return queryOptions({
+    queryKey: stageKeys.project(id),
+    queryFn: ({ signal }) => fetchJson<{ project: ProjectDetail }>(`/api/projects/${id}`, { signal }).then((r) => r.project),
+  });
+}
+
+export function analyzeQueryOptions(body: AnalyzeBody | null) {
+  return queryOptions({
+    queryKey: stageKeys.analyze(body),
+    // the signal aborts the request when a newer edit replaces this key
+    queryFn: ({ signal }) => fetchJson<{ analysis: StageAnalysis }>('/api/analyze', { method: 'POST', body, signal }).then((r) => r.analysis),
+    enabled: body !== null,
+    staleTime: Infinity,
+    gcTime: 60_000,
+    retry: false,
+  });
+}
+
+function useDebounced<T>(value: T, key: string, ms: number): { value: T; key: string } {
+  const [state, setState] = useState({ value, key });
+  useEffect(() => {
+    if (key === state.key) return;
+    const t = setTimeout(() => setState({ value, key }), ms);
+    return () => clearTimeout(t);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [key, ms]);
+  return state;
+}
+
+export type LiveAnalysisState = 'current' | 'updating' | 'invalid' | 'failed' | 'none';
+
+/**
+ * Re-runs the analysis ~250 ms after the last edit. The last good result stays on screen while a request is in
+ * flight, while the input is invalid, or after a calculation error; `state` says which.
+ */
+export function useLiveAnalysis(body: AnalyzeBody | null, initial: StageAnalysis | null = null, debounceMs = 250) {
+  const key = useMemo(() => (body ? JSON.stringify(body) : ''), [body]);
+  const debounced = useDebounced(body, key, debounceMs);
+  const query = useQuery(analyzeQueryOptions(debounced.key === '' ? null : debounced.value));
+  const [lastGood, setLastGood] = useState<StageAnalysis | null>(initial);
+  const fresh = query.isSuccess ? query.data : undefined;
+  useEffect(() => {
+    if (fresh) setLastGood(fresh);
+  }, [fresh]);
+  const analysis = fresh ?? lastGood;
+  const pending = key !== debounced.key || query.isFetching;
+  const calcError = !pending && query.isError ? query.error : null;
+  const state: LiveAnalysisState = body === null ? 'invalid' : pending ? 'updating' : calcError ? 'failed' : fresh ? 'current' : analysis ? 'updating' : 'none';
+  return {
+    analysis,
+    state,
+    stale: state !== 'current',
+    error: calcError instanceof ApiRequestError ? calcError : calcError ? new ApiRequestError(String(calcError.message), 0, 'error') : null,
+  };
+}
+
+export type SaveStageVars =
+  | { kind: 'create'; projectId: number; body: AnalyzeBody & { name: string; supplyNode?: string | null } }
+  | { kind: 'update'; stageId: number; version: number; name: string; supplyNode: string | null; tubeModelId: number | null; inputs: StageBody };
+
+export function useSaveStage() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: async (vars: SaveStageVars): Promise<StageDTO> => {
+      if (vars.kind === 'create') {
+        const r = await fetchJson<{ stage: StageDTO }>(`/api/projects/${vars.projectId}/stages`, { method: 'POST', body: vars.body });
+        return r.stage;
+      }
+      const r = await fetchJson<{ stage: StageDTO }>(`/api/stages/${vars.stageId}`, {
+        method: 'PATCH',
+        body: { version: vars.version, name: vars.name, supplyNode: vars.supplyNode, tubeModelId: vars.tubeModelId, inputs: vars.inputs },
+      });
+      return r.stage;
+    },
+    onSuccess: (stage) => {
+      qc.setQueryData(stageKeys.stage(stage.id), stage);
+      void qc.invalidateQueries({ queryKey: stageKeys.project(stage.projectId) });
+    },
+  });
+}
+
+/** The other person's stage from a 409 answer, when the server sent it. */
+export function conflictCurrent(error: unknown): StageDTO | null {
+  if (!(error instanceof ApiRequestError) || error.status !== 409) return null;
+  const details = error.details as { current?: StageDTO } | undefined;
+  return details?.current ?? null;
+}
