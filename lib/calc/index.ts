@@ -18,7 +18,9 @@ export type { TubeModel, SmallSignalParams } from './models/registry';
 export { korenTriodeCurrent, korenPentodePlateCurrent, korenPentodeScreenCurrent } from './models/koren';
 export type { KorenTriodeParams, KorenPentodeParams } from './models/koren';
 export { childLangmuirDiodeCurrent, threeHalvesTriodeCurrent, planarPerveance } from './models/child-langmuir';
-export { tubeSubcircuit, stageNetlist } from './spice';
+export { tubeSubcircuit, stageNetlist, SPICE_PRELUDE } from './spice';
+export type { NetlistOptions, SpiceAnalysis } from './spice';
+export * as formulas from './formulas';
 
 function assertFinite(value: unknown, path: string): void {
   if (typeof value === 'number') {
