@@ -1,0 +1,19 @@
+// POST /api/bench-checks/{id}/photos – attach a photo of the build (multipart field `file`; JPEG, PNG or WebP)
+import { NextResponse } from 'next/server';
+import { ApiError } from '@/lib/api/errors';
+import { parseParams, withUser } from '@/lib/api/with-user';
+import { addBenchPhoto } from '@/lib/db/bench-checks';
+import { idParamSchema } from '@/lib/validation/auth';
+
+export const POST = withUser('bench:write', async (req, { user, params }) => {
+  const { id } = parseParams(params, idParamSchema);
+  let form: FormData;
+  try {
+    form = await req.formData();
+  } catch {
+    throw new ApiError('bad_request', 'Send the photo as multipart form data in the field "file".');
+  }
+  const file = form.get('file');
+  if (!(file instanceof File)) throw new ApiError('unprocessable_entity', 'Choose a photo to upload.', { fieldErrors: { file: ['Choose a photo to upload.'] } });
+  return NextResponse.json({ photo: await addBenchPhoto(user, id, file) }, { status: 201 });
+});

@@ -1,0 +1,21 @@
+// GET /api/projects/{id}/revisions – the project's revisions, newest first
+// POST /api/projects/{id}/revisions – submit the project for review: freezes a hash-stamped revision
+import { NextResponse } from 'next/server';
+import { parseBody, parseParams, withUser } from '@/lib/api/with-user';
+import { assertProjectExists } from '@/lib/db/bench-checks';
+import { listRevisions, submitRevision } from '@/lib/db/revisions';
+import { idParamSchema } from '@/lib/validation/auth';
+import { submitRevisionSchema } from '@/lib/validation/review';
+
+export const GET = withUser('reviews:read', async (_req, { params }) => {
+  const { id } = parseParams(params, idParamSchema);
+  await assertProjectExists(id);
+  return NextResponse.json({ revisions: await listRevisions({ projectId: id }) });
+});
+
+export const POST = withUser('revisions:submit', async (req, { user, params }) => {
+  const { id } = parseParams(params, idParamSchema);
+  const text = await req.text();
+  const body = submitRevisionSchema.parse(text.trim() ? JSON.parse(text) : {});
+  return NextResponse.json({ revision: await submitRevision(user, id, body) }, { status: 201 });
+});

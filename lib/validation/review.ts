@@ -1,0 +1,30 @@
+import { z } from 'zod';
+
+export const submitRevisionSchema = z.object({
+  /** a note to the reviewers, sent with the notice */
+  note: z.string().trim().max(2000, 'Keep the note under 2000 characters.').default(''),
+});
+export type SubmitRevisionInput = z.input<typeof submitRevisionSchema>;
+
+export const DECISIONS = ['approve', 'request-changes'] as const;
+
+export const decisionSchema = z
+  .object({
+    decision: z.enum(DECISIONS, { message: 'Choose approve or request changes.' }),
+    comment: z.string().trim().max(5000, 'Keep the comment under 5000 characters.').default(''),
+  })
+  .superRefine((v, ctx) => {
+    if (v.decision === 'request-changes' && v.comment.length === 0) {
+      ctx.addIssue({ code: 'custom', path: ['comment'], message: 'Say what should change.' });
+    }
+  });
+export type DecisionInput = z.input<typeof decisionSchema>;
+
+export const REVISION_STATES = ['submitted', 'approved', 'changes-requested'] as const;
+
+export const revisionListQuerySchema = z.object({
+  state: z.enum(REVISION_STATES).optional(),
+  projectId: z.coerce.number().int().positive().optional(),
+});
+
+export const withdrawQuerySchema = z.object({});
