@@ -37,6 +37,74 @@ export const RULES: Rule[] = [
   { route: 'GET /api/audit', handler: async () => (await import('@/app/api/audit/route')).GET, allowed: ['admin', 'designer', 'reviewer'], ok: 200 },
   // --- tube library ---
   // --- projects and stages ---
+  { route: 'GET /api/projects', handler: async () => (await import('@/app/api/projects/route')).GET, allowed: ALL, ok: 200 },
+  {
+    route: 'POST /api/projects',
+    handler: async () => (await import('@/app/api/projects/route')).POST,
+    request: { method: 'POST', body: { name: '' } },
+    allowed: ['admin', 'designer'],
+    ok: 422,
+  },
+  { route: 'GET /api/projects/{id}', handler: async () => (await import('@/app/api/projects/[id]/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
+  {
+    route: 'PATCH /api/projects/{id}',
+    handler: async () => (await import('@/app/api/projects/[id]/route')).PATCH,
+    request: { method: 'PATCH', params: { id: '999999' }, body: { version: 1, name: 'Renamed' } },
+    allowed: ['admin', 'designer'],
+    ok: 404,
+  },
+  {
+    route: 'DELETE /api/projects/{id}',
+    handler: async () => (await import('@/app/api/projects/[id]/route')).DELETE,
+    request: { method: 'DELETE', params: { id: '999999' } },
+    allowed: ['admin', 'designer'],
+    ok: 404,
+  },
+  {
+    route: 'POST /api/projects/{id}/stages',
+    handler: async () => (await import('@/app/api/projects/[id]/stages/route')).POST,
+    request: { method: 'POST', params: { id: '999999' }, body: { name: 'V1' } },
+    allowed: ['admin', 'designer'],
+    ok: 422,
+  },
+  { route: 'GET /api/projects/{id}/chain', handler: async () => (await import('@/app/api/projects/[id]/chain/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
+  { route: 'GET /api/projects/{id}/report', handler: async () => (await import('@/app/api/projects/[id]/report/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
+  { route: 'GET /api/stages/{id}', handler: async () => (await import('@/app/api/stages/[id]/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
+  {
+    route: 'PATCH /api/stages/{id}',
+    handler: async () => (await import('@/app/api/stages/[id]/route')).PATCH,
+    request: { method: 'PATCH', params: { id: '999999' }, body: { version: 1, name: 'V1' } },
+    allowed: ['admin', 'designer'],
+    ok: 404,
+  },
+  {
+    route: 'DELETE /api/stages/{id}',
+    handler: async () => (await import('@/app/api/stages/[id]/route')).DELETE,
+    request: { method: 'DELETE', path: '/api/stages/999999?version=1', params: { id: '999999' } },
+    allowed: ['admin', 'designer'],
+    ok: 404,
+  },
+  {
+    route: 'GET /api/stages/{id}/curves',
+    handler: async () => (await import('@/app/api/stages/[id]/curves/route')).GET,
+    request: { path: '/api/stages/999999/curves?kind=plate', params: { id: '999999' } },
+    allowed: ALL,
+    ok: 404,
+  },
+  {
+    route: 'POST /api/analyze',
+    handler: async () => (await import('@/app/api/analyze/route')).POST,
+    request: {
+      method: 'POST',
+      body: {
+        topology: 'common-cathode',
+        tube: { model: 'koren-triode', mu: 100, ex: 1.4, kg1: 1060, kp: 600, kvb: 300 },
+        supply: 250, gridResistor: '1M', plateResistor: '100k', bias: { kind: 'cathode', cathodeResistor: '1k5' },
+      },
+    },
+    allowed: ALL,
+    ok: 200,
+  },
   // --- bench checks and review ---
 ];
 

@@ -1,0 +1,23 @@
+// GET /api/projects/{id}/report – the design report PDF (stages, inputs, results, ratings, plots, chain and supply)
+import { parseParams, withUser } from '@/lib/api/with-user';
+import { solveChain } from '@/lib/calc/chain';
+import { chainStagesFor, getProject } from '@/lib/db/projects';
+import { renderProjectReportPdf } from '@/lib/report/project-report';
+import { idParamSchema } from '@/lib/validation/auth';
+
+export const runtime = 'nodejs';
+
+export const GET = withUser('projects:read', async (_req, { params }) => {
+  const { id } = parseParams(params, idParamSchema);
+  const project = await getProject(id);
+  const chain = solveChain(await chainStagesFor(project), project.supply, { inputRms: 0.1 });
+  const pdf = await renderProjectReportPdf(project, { chain });
+  const slug = project.name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 60) || `project-${project.id}`;
+  return new Response(new Uint8Array(pdf), {
+    headers: {
+      'content-type': 'application/pdf',
+      'content-disposition': `attachment; filename="${slug}-report.pdf"`,
+      'cache-control': 'no-store',
+    },
+  });
+});

@@ -1,0 +1,360 @@
+// The project's design report as a PDF (@react-pdf/renderer). Works from a plain ProjectDetail, without the database,
+// so frozen revisions and e-mail attachments render the same way.
+import { existsSync } from 'node:fs';
+import { Circle, Document, Font, Line, Page, Polyline, StyleSheet, Svg, Text, View, renderToBuffer } from '@react-pdf/renderer';
+import type { ChainResult } from '@/lib/calc/chain';
+import type { StageAnalysis } from '@/lib/calc';
+import type { ProjectDetail } from '@/lib/db/projects';
+import type { StageDTO } from '@/lib/db/stages';
+import { formatEng } from '@/lib/units';
+import { inputRows, LIMIT_WORDS, TOPOLOGY_LABELS } from './labels';
+
+export type ReportOptions = {
+  revision?: { number: number; contentHash: string; state: string };
+  /** the chain + supply solution, when the caller has it (the report route does) */
+  chain?: ChainResult | null;
+  generatedAt?: Date;
+};
+
+// Helvetica cannot print Ω or µ reliably; use DejaVu when the system has it, else spell the units out.
+const FONT_DIR = '/usr/share/fonts/truetype/dejavu';
+let fontFamily = 'Helvetica';
+let fontsChecked = false;
+function pickFonts() {
+  if (fontsChecked) return;
+  fontsChecked = true;
+  const regular = `${FONT_DIR}/DejaVuSans.ttf`;
+  const bold = `${FONT_DIR}/DejaVuSans-Bold.ttf`;
+  if (existsSync(regular) && existsSync(bold)) {
+    Font.register({ family: 'DejaVuSans', fonts: [{ src: regular }, { src: bold, fontWeight: 'bold' }] });
+    fontFamily = 'DejaVuSans';
+  }
+  Font.registerHyphenationCallback((word) => [word]);
+}
+const t = (s: string) => (fontFamily === 'Helvetica' ? s.replace(/Ω/g, 'ohm').replace(/µ/g, 'u').replace(/[≈→–]/g, (c) => ({ '≈': '~', '→': '->', '–': '-' })[c] ?? c) : s);
+const eng = (v: number | null | undefined, unit: string, digits = 3) => (typeof v === 'number' && Number.isFinite(v) ? t(formatEng(v, unit, digits)) : '–');
+
+const INK = '#1f2328';
+const MUTED = '#6a6358';
+const RULE = '#d9d0bf';
+const STATUS_COLOUR: Record<string, string> = { ok: '#2f7d3b', near: '#b7791f', over: '#c2362b', 'not-checked': MUTED };
+
+const s = StyleSheet.create({
+  page: { padding: 36, fontSize: 9, color: INK, lineHeight: 1.35 },
+  h1: { fontSize: 17, fontWeight: 'bold', marginBottom: 2 },
+  h2: { fontSize: 12, fontWeight: 'bold', marginTop: 12, marginBottom: 4, paddingBottom: 2, borderBottomWidth: 0.7, borderBottomColor: RULE },
+  h3: { fontSize: 10, fontWeight: 'bold', marginTop: 6, marginBottom: 3 },
+  muted: { color: MUTED },
+  caution: { marginTop: 8, padding: 6, borderWidth: 0.7, borderColor: '#b7791f', backgroundColor: '#fbf1df', fontSize: 8 },
+  row: { flexDirection: 'row', borderBottomWidth: 0.4, borderBottomColor: RULE, paddingVertical: 1.5 },
+  head: { flexDirection: 'row', borderBottomWidth: 0.8, borderBottomColor: INK, paddingVertical: 1.5, fontWeight: 'bold' },
+  cols: { flexDirection: 'row', gap: 14 },
+  col: { flex: 1 },
+  footer: { position: 'absolute', bottom: 18, left: 36, right: 36, fontSize: 7, color: MUTED, flexDirection: 'row', justifyContent: 'space-between' },
+});
+
+function Table({ head, rows, widths }: { head: string[]; rows: (string | { text: string; colour?: string })[][]; widths: number[] }) {
+  return (
+    <View>
+      <View style={s.head}>
+        {head.map((h, i) => (
+          <Text key={i} style={{ flex: widths[i] ?? 1 }}>{t(h)}</Text>
+        ))}
+      </View>
+      {rows.map((r, ri) => (
+        <View key={ri} style={s.row} wrap={false}>
+          {r.map((c, i) => {
+            const cell = typeof c === 'string' ? { text: c } : c;
+            return (
+              <Text key={i} style={{ flex: widths[i] ?? 1, color: cell.colour ?? INK }}>{t(cell.text)}</Text>
+            );
+          })}
+        </View>
+      ))}
+    </View>
+  );
+}
+
+function KeyValues({ rows }: { rows: [string, string][] }) {
+  return (
+    <View>
+      {rows.map(([k, v], i) => (
+        <View key={i} style={s.row} wrap={false}>
+          <Text style={{ flex: 1.3, color: MUTED }}>{t(k)}</Text>
+          <Text style={{ flex: 1 }}>{t(v)}</Text>
+        </View>
+      ))}
+    </View>
+  );
+}
+
+/** Plate curves with the DC and AC load lines, Pa(max) and the operating point. */
+function PlatePlot({ a, width = 250, height = 170 }: { a: StageAnalysis; width?: number; height?: number }) {
+  const p = a.plot;
+  const pts = [...p.curves.flatMap((c) => c.points), ...p.dcLoadLine, ...p.acLoadLine, p.operatingPoint];
+  const vaMax = Math.max(1, ...pts.map((q) => q.va)) * 1.02;
+  const iaCap = Math.max(p.operatingPoint.ia * 2.6, ...p.dcLoadLine.map((q) => q.ia)) * 1.05;
+  const iaMax = Math.max(1e-6, Math.min(iaCap, Math.max(...pts.map((q) => q.ia))));
+  const m = { l: 28, b: 18, t: 6, r: 6 };
+  const W = width - m.l - m.r;
+  const H = height - m.t - m.b;
+  const x = (va: number) => m.l + (Math.max(0, Math.min(va, vaMax)) / vaMax) * W;
+  const y = (ia: number) => m.t + H - (Math.max(0, Math.min(ia, iaMax)) / iaMax) * H;
+  const line = (ps: { va: number; ia: number }[]) => ps.filter((q) => q.ia <= iaMax * 1.001 && q.va <= vaMax).map((q) => `${x(q.va).toFixed(1)},${y(q.ia).toFixed(1)}`).join(' ');
+  return (
+    <View>
+      <Svg width={width} height={height}>
+        <Line x1={m.l} y1={m.t + H} x2={m.l + W} y2={m.t + H} stroke={INK} strokeWidth={0.6} />
+        <Line x1={m.l} y1={m.t} x2={m.l} y2={m.t + H} stroke={INK} strokeWidth={0.6} />
+        {p.curves.map((c, i) => (
+          <Polyline key={i} points={line(c.points)} stroke={c.bias ? '#5b554b' : '#b4ad9f'} strokeWidth={c.bias ? 1.1 : 0.6} fill="none" />
+        ))}
+        {p.paMax.length ? <Polyline points={line(p.paMax)} stroke="#c2362b" strokeWidth={0.8} strokeDasharray="3,2" fill="none" /> : null}
+        <Polyline points={line(p.dcLoadLine)} stroke="#1f6fb2" strokeWidth={1} fill="none" />
+        <Polyline points={line(p.acLoadLine)} stroke="#0f8a7e" strokeWidth={1} fill="none" />
+        <Circle cx={x(p.operatingPoint.va)} cy={y(p.operatingPoint.ia)} r={2.6} fill="#d9822b" />
+      </Svg>
+      <Text style={{ fontSize: 7, color: MUTED }}>
+        {t(`Plate voltage 0–${formatEng(vaMax, 'V')} across, plate current 0–${formatEng(iaMax, 'A')} up. Blue: DC load line; green: AC load line; red dashed: Pa(max); amber: operating point.`)}
+      </Text>
+    </View>
+  );
+}
+
+/** Frequency response, magnitude in dB against log frequency. */
+function ResponsePlot({ a, width = 250, height = 110 }: { a: StageAnalysis; width?: number; height?: number }) {
+  const r = a.smallSignal.response;
+  if (r.length < 2) return null;
+  const m = { l: 28, b: 14, t: 6, r: 6 };
+  const W = width - m.l - m.r;
+  const H = height - m.t - m.b;
+  const f0 = Math.log10(r[0]!.frequency);
+  const f1 = Math.log10(r[r.length - 1]!.frequency);
+  const top = Math.max(...r.map((q) => q.magnitudeDb));
+  const bottom = top - 24;
+  const x = (f: number) => m.l + ((Math.log10(f) - f0) / (f1 - f0 || 1)) * W;
+  const y = (db: number) => m.t + ((top - Math.max(bottom, Math.min(top, db))) / (top - bottom)) * H;
+  return (
+    <View>
+      <Svg width={width} height={height}>
+        <Line x1={m.l} y1={m.t + H} x2={m.l + W} y2={m.t + H} stroke={INK} strokeWidth={0.6} />
+        <Line x1={m.l} y1={m.t} x2={m.l} y2={m.t + H} stroke={INK} strokeWidth={0.6} />
+        <Line x1={m.l} y1={y(top - 3)} x2={m.l + W} y2={y(top - 3)} stroke={RULE} strokeWidth={0.5} strokeDasharray="2,2" />
+        <Polyline points={r.map((q) => `${x(q.frequency).toFixed(1)},${y(q.magnitudeDb).toFixed(1)}`).join(' ')} stroke="#1f6fb2" strokeWidth={1} fill="none" />
+      </Svg>
+      <Text style={{ fontSize: 7, color: MUTED }}>
+        {t(`Response ${formatEng(r[0]!.frequency, 'Hz')}–${formatEng(r[r.length - 1]!.frequency, 'Hz')} (log), ${top.toFixed(1)} dB at top, 24 dB span; dashed line at −3 dB.`)}
+      </Text>
+    </View>
+  );
+}
+
+function resultRows(a: StageAnalysis): [string, string][] {
+  const op = a.operatingPoint;
+  const ss = a.smallSignal;
+  const ls = a.largeSignal;
+  const rows: [string, string][] = [
+    ['Plate voltage (to ground)', eng(op.plateVoltage, 'V')],
+    ['Plate–cathode voltage', eng(op.plateCathodeVoltage, 'V')],
+    ['Plate current', eng(op.plateCurrent, 'A')],
+    ['Grid–cathode voltage (bias)', eng(op.gridCathodeVoltage, 'V')],
+    ['Cathode voltage', eng(op.cathodeVoltage, 'V')],
+    ['Plate dissipation', eng(op.plateDissipation, 'W')],
+  ];
+  if (op.screenVoltage !== null) rows.push(['Screen voltage', eng(op.screenVoltage, 'V')], ['Screen current', eng(op.screenCurrent, 'A')]);
+  rows.push(
+    ['Voltage gain', `${ss.gain.toFixed(2)} (${ss.gainDb.toFixed(1)} dB)`],
+    ['Transconductance gm', eng(ss.gm, 'S')],
+    ['Plate resistance ra', eng(ss.ra, 'Ω')],
+    ['Amplification factor µ', ss.mu.toFixed(1)],
+    ['Output impedance', eng(ss.outputImpedance, 'Ω')],
+    ['Low / high −3 dB', `${eng(ss.lowCutoff, 'Hz')} / ${eng(ss.highCutoff, 'Hz')}`],
+    ['Drive (peak at grid)', eng(ls.drive, 'V')],
+    ['Output amplitude (peak)', eng(ls.outputAmplitude, 'V')],
+    ['THD at this drive', `${ls.thdPercent.toFixed(2)} %`],
+    ['Headroom (peak at grid)', `${eng(ls.headroom.maxDrive, 'V')}, ${LIMIT_WORDS[ls.headroom.limitedBy] ?? ls.headroom.limitedBy}`],
+  );
+  if (ls.outputPower !== null) rows.push(['Output power', eng(ls.outputPower, 'W')]);
+  return rows;
+}
+
+function StageSection({ stage, index, chain }: { stage: StageDTO; index: number; chain?: ChainResult | null }) {
+  const a = stage.analysis;
+  const link = chain?.stages.find((c) => c.stageId === stage.id);
+  return (
+    <View break={index > 0}>
+      <Text style={s.h2}>{t(`Stage ${stage.position} · ${stage.name}`)}</Text>
+      <Text style={s.muted}>
+        {t(`${TOPOLOGY_LABELS[stage.topology] ?? stage.topology} · ${stage.tubeDesignation}${a?.operatingPoint ? '' : ''} · supply node ${stage.supplyNode ?? 'none'} · version ${stage.version}`)}
+      </Text>
+      {link ? (
+        <Text style={s.muted}>{t(`Supply assumed ${eng(link.assumedSupply, 'V')}, solved at its node ${eng(link.solvedSupply, 'V')}.`)}</Text>
+      ) : null}
+      <View style={s.cols}>
+        <View style={s.col}>
+          <Text style={s.h3}>Inputs</Text>
+          <KeyValues rows={inputRows(stage.inputs as unknown as Record<string, unknown>).map((r) => [r.label, r.value])} />
+        </View>
+        <View style={s.col}>
+          <Text style={s.h3}>Results</Text>
+          {a ? <KeyValues rows={resultRows(a)} /> : <Text style={{ color: STATUS_COLOUR.over }}>{t(`Not analysed: ${stage.analysisError?.message ?? 'no analysis stored.'}`)}</Text>}
+        </View>
+      </View>
+      {a ? (
+        <>
+          <Text style={s.h3}>Ratings</Text>
+          <Table
+            head={['Rating', 'Value', 'Limit', 'Use', 'Status']}
+            widths={[2.2, 1, 1, 0.7, 0.9]}
+            rows={a.ratings.map((r) => [
+              r.label,
+              eng(r.value, r.unit),
+              r.limit !== null ? eng(r.limit, r.unit) : '–',
+              r.percent !== null ? `${Math.round(r.percent)} %` : '–',
+              { text: r.status === 'not-checked' ? 'not checked' : r.status, colour: STATUS_COLOUR[r.status] },
+            ])}
+          />
+          {a.ratings.filter((r) => r.caution).map((r, i) => (
+            <Text key={i} style={{ color: STATUS_COLOUR[r.status], marginTop: 2 }}>{t(`${r.label}: ${r.caution}`)}</Text>
+          ))}
+          {a.warnings.map((w, i) => (
+            <Text key={`w${i}`} style={{ color: STATUS_COLOUR.near, marginTop: 2 }}>{t(`Note: ${w}`)}</Text>
+          ))}
+          <View style={[s.cols, { marginTop: 8 }]} wrap={false}>
+            <View style={s.col}>
+              <Text style={s.h3}>Plate curves and load lines</Text>
+              <PlatePlot a={a} />
+            </View>
+            <View style={s.col}>
+              <Text style={s.h3}>Frequency response</Text>
+              <ResponsePlot a={a} />
+            </View>
+          </View>
+        </>
+      ) : null}
+    </View>
+  );
+}
+
+function SupplySection({ project, chain }: { project: ProjectDetail; chain?: ChainResult | null }) {
+  const sup = project.supply ?? {};
+  const solved = chain?.supply;
+  return (
+    <View>
+      <Text style={s.h2}>Supply</Text>
+      <Text>{t(`Raw B+ ${eng(sup.rawVoltage, 'V')} behind ${eng(sup.sourceResistance ?? 0, 'Ω')} source resistance${solved ? `; loaded ${eng(solved.loadedVoltage, 'V')}, total ${eng(solved.totalCurrent, 'A')}.` : '.'}`)}</Text>
+      {(sup.nodes ?? []).length ? (
+        <Table
+          head={['Node', 'Name', 'Dropping R', 'Filter C', 'Voltage', 'Current in', 'Drawn here', 'R power']}
+          widths={[0.6, 1.8, 0.9, 0.8, 0.9, 0.9, 0.9, 0.8]}
+          rows={(sup.nodes ?? []).map((n) => {
+            const r = solved?.nodes.find((x) => x.key === n.key);
+            return [n.key, n.name, eng(n.droppingResistor, 'Ω'), eng(n.filterCapacitor, 'F'), eng(r?.voltage, 'V', 4), eng(r?.currentIn, 'A'), eng(r?.stageCurrent, 'A'), eng(r?.resistorPower, 'W')];
+          })}
+        />
+      ) : (
+        <Text style={s.muted}>No B+ nodes defined.</Text>
+      )}
+      {chain?.supplyError ? <Text style={{ color: STATUS_COLOUR.over }}>{t(chain.supplyError.message)}</Text> : null}
+      {chain && chain.heaters.length ? (
+        <>
+          <Text style={s.h3}>Heaters</Text>
+          <Table
+            head={['Supply', 'Voltage', 'Current', 'Power', 'Loads']}
+            widths={[1.6, 0.7, 0.7, 0.7, 2.4]}
+            rows={chain.heaters.map((h) => [h.name, eng(h.voltage, 'V'), eng(h.current, 'A'), eng(h.power, 'W'), h.loads.map((l) => `${l.designation} ${formatEng(l.current, 'A')}`).join(', ') || '–'])}
+          />
+        </>
+      ) : null}
+    </View>
+  );
+}
+
+function ChainSection({ chain }: { chain: ChainResult }) {
+  return (
+    <View>
+      <Text style={s.h2}>{t(`Signal chain at ${formatEng(chain.inputRms, 'V')} rms input`)}</Text>
+      <Table
+        head={['#', 'Stage', 'Gain', 'In (rms)', 'Out (rms)', 'Clips from (chain in)', 'Supply assumed → solved']}
+        widths={[0.3, 1.8, 0.7, 0.9, 0.9, 1.3, 1.6]}
+        rows={chain.stages.map((c) => [
+          String(c.position),
+          c.name,
+          c.gain !== null ? c.gain.toFixed(2) : '–',
+          eng(c.inputRms, 'V'),
+          eng(c.outputRms, 'V'),
+          { text: c.clipsAtChainInputRms !== null ? `${eng(c.clipsAtChainInputRms, 'V')} rms` : '–', colour: c.clipping ? STATUS_COLOUR.over : INK },
+          `${eng(c.assumedSupply, 'V')} → ${eng(c.solvedSupply, 'V')}`,
+        ])}
+      />
+      <Text style={{ marginTop: 3 }}>
+        {t(
+          `Whole chain: gain ${chain.totalGain !== null ? `${chain.totalGain.toFixed(1)} (${chain.totalGainDb?.toFixed(1) ?? '–'} dB)` : '–'}. ` +
+            (chain.firstClip ? `First to clip: ${chain.firstClip.name}, from ${formatEng(chain.firstClip.chainInputRms, 'V')} rms at the chain input (${LIMIT_WORDS[chain.firstClip.limitedBy] ?? chain.firstClip.limitedBy}).` : 'No stage reports a clipping limit.'),
+        )}
+      </Text>
+      {chain.warnings.map((w, i) => (
+        <Text key={i} style={{ color: STATUS_COLOUR.near }}>{t(w)}</Text>
+      ))}
+    </View>
+  );
+}
+
+export function ProjectReport({ project, opts = {} }: { project: ProjectDetail; opts?: ReportOptions }) {
+  const when = (opts.generatedAt ?? new Date()).toISOString().slice(0, 16).replace('T', ' ');
+  const rev = opts.revision;
+  return (
+    <Document title={`${project.name} – design report`} author="Anodyne" subject="Tube amplifier design report" creator="Anodyne">
+      <Page size="A4" style={[s.page, { fontFamily }]} wrap>
+        <Text style={s.h1}>{t(project.name)}</Text>
+        <Text style={s.muted}>
+          {t(`Design report · status ${project.status.replace('-', ' ')}${project.archived ? ' (archived)' : ''} · owner ${project.owner?.displayName ?? '–'} · project version ${project.version} · generated ${when} UTC`)}
+        </Text>
+        {rev ? <Text style={s.muted}>{t(`Revision ${rev.number} (${rev.state}) · content hash ${rev.contentHash}`)}</Text> : null}
+        {project.description ? <Text style={{ marginTop: 6 }}>{t(project.description)}</Text> : null}
+        <View style={s.caution}>
+          <Text>
+            {t('Lethal voltages. B+ and plate supplies in tube amplifiers can kill, and filter capacitors hold their charge after switch-off. ' +
+              'The figures in this report are estimates from tube models, to be confirmed by measurement with suitable instruments. Local electrical codes and licensed practice come first.')}
+          </Text>
+        </View>
+        <Text style={s.h2}>Stages</Text>
+        <Table
+          head={['#', 'Stage', 'Topology', 'Tube', 'Ia', 'Va–k', 'Gain', 'Worst rating']}
+          widths={[0.3, 1.8, 1.3, 0.8, 0.8, 0.8, 0.7, 0.9]}
+          rows={project.stages.map((st) => {
+            const a = st.analysis;
+            const worst = a ? (['over', 'near', 'ok', 'not-checked'] as const).find((k) => a.ratings.some((r) => r.status === k)) ?? 'not-checked' : null;
+            return [
+              String(st.position),
+              st.name,
+              TOPOLOGY_LABELS[st.topology] ?? st.topology,
+              st.tubeDesignation,
+              eng(a?.operatingPoint.plateCurrent, 'A'),
+              eng(a?.operatingPoint.plateCathodeVoltage, 'V'),
+              a ? a.smallSignal.gain.toFixed(2) : '–',
+              worst ? { text: worst === 'not-checked' ? 'not checked' : worst, colour: STATUS_COLOUR[worst] } : { text: 'not analysed', colour: STATUS_COLOUR.over },
+            ];
+          })}
+        />
+        {chain(opts) ? <ChainSection chain={opts.chain!} /> : null}
+        <SupplySection project={project} chain={opts.chain} />
+        <View break />
+        {project.stages.map((st, i) => (
+          <StageSection key={st.id} stage={st} index={i} chain={opts.chain} />
+        ))}
+        <View style={s.footer} fixed>
+          <Text>{t(`Anodyne · ${project.name}`)}</Text>
+          <Text render={({ pageNumber, totalPages }) => `${pageNumber} / ${totalPages}`} />
+        </View>
+      </Page>
+    </Document>
+  );
+}
+
+const chain = (opts: ReportOptions) => Boolean(opts.chain && opts.chain.stages.length);
+
+export async function renderProjectReportPdf(project: ProjectDetail, opts: ReportOptions = {}): Promise<Buffer> {
+  pickFonts();
+  return renderToBuffer(<ProjectReport project={project} opts={opts} />);
+}
