@@ -106,6 +106,47 @@ export const RULES: Rule[] = [
     ok: 200,
   },
   // --- bench checks and review ---
+  { route: 'GET /api/stages/{id}/bench-checks', handler: async () => (await import('@/app/api/stages/[id]/bench-checks/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
+  {
+    route: 'POST /api/stages/{id}/bench-checks',
+    handler: async () => (await import('@/app/api/stages/[id]/bench-checks/route')).POST,
+    request: { method: 'POST', params: { id: '999999' }, body: { supplyVoltage: 300, plateVoltage: 200, cathodeVoltage: 1.5 } },
+    allowed: ['admin', 'technician'],
+    ok: 404,
+  },
+  { route: 'GET /api/projects/{id}/bench-checks', handler: async () => (await import('@/app/api/projects/[id]/bench-checks/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
+  { route: 'GET /api/bench-checks/{id}', handler: async () => (await import('@/app/api/bench-checks/[id]/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
+  {
+    route: 'POST /api/bench-checks/{id}/photos',
+    handler: async () => (await import('@/app/api/bench-checks/[id]/photos/route')).POST,
+    request: async () => {
+      const form = new FormData();
+      form.set('file', new File([new Uint8Array([0x89, 0x50, 0x4e, 0x47])], 'x.png', { type: 'image/png' }));
+      return { method: 'POST', params: { id: '999999' }, form };
+    },
+    allowed: ['admin', 'technician'],
+    ok: 404,
+  },
+  {
+    route: 'GET /api/bench-checks/{id}/photos/{photoId}',
+    handler: async () => (await import('@/app/api/bench-checks/[id]/photos/[photoId]/route')).GET,
+    request: { params: { id: '999999', photoId: '999999' } },
+    allowed: ALL,
+    ok: 404,
+  },
+  { route: 'GET /api/projects/{id}/revisions', handler: async () => (await import('@/app/api/projects/[id]/revisions/route')).GET, request: { params: { id: '999999' } }, allowed: ['admin', 'designer', 'reviewer'], ok: 404 },
+  { route: 'POST /api/projects/{id}/revisions', handler: async () => (await import('@/app/api/projects/[id]/revisions/route')).POST, request: { method: 'POST', params: { id: '999999' }, body: {} }, allowed: ['admin', 'designer'], ok: 404 },
+  { route: 'GET /api/revisions', handler: async () => (await import('@/app/api/revisions/route')).GET, allowed: ['admin', 'designer', 'reviewer'], ok: 200 },
+  { route: 'GET /api/revisions/{id}', handler: async () => (await import('@/app/api/revisions/[id]/route')).GET, request: { params: { id: '999999' } }, allowed: ['admin', 'designer', 'reviewer'], ok: 404 },
+  { route: 'DELETE /api/revisions/{id}', handler: async () => (await import('@/app/api/revisions/[id]/route')).DELETE, request: { method: 'DELETE', params: { id: '999999' } }, allowed: ['admin', 'designer'], ok: 404 },
+  {
+    route: 'POST /api/revisions/{id}/decision',
+    handler: async () => (await import('@/app/api/revisions/[id]/decision/route')).POST,
+    request: { method: 'POST', params: { id: '999999' }, body: { decision: 'approve', comment: '' } },
+    allowed: ['admin', 'reviewer'],
+    ok: 404,
+  },
+  { route: 'GET /api/revisions/{id}/report', handler: async () => (await import('@/app/api/revisions/[id]/report/route')).GET, request: { params: { id: '999999' } }, allowed: ['admin', 'designer', 'reviewer'], ok: 404 },
 ];
 
 describe('route rules: 401 for anonymous, 403 for a role that may not, the allowed status otherwise', () => {
