@@ -6,7 +6,7 @@ import { checkRatings } from '../ratings';
 import { cutoff, firstOrderLowPass, responseCurve, type ResponseFactor } from '../response';
 import { expandUpper, solveIncreasing } from '../solve';
 import type { HeadroomLimit, StageAnalysis } from '../types';
-import { firstCrossing, mean, sineDrive, steadyState } from './cycle';
+import { firstCrossing, mean, SAMPLES_PER_CYCLE as SAMPLES, sineDrive, steadyState } from './cycle';
 import { solveNetwork } from './network';
 import { screenParts } from './pentode-amplifier';
 import { checkIdle, operatingPointOf, stagePlot } from './single-tube';
@@ -37,59 +37,75 @@ type PPNet = {
 
 const TOL = 1e-15;
 
-function solvePP(net: PPNet, vin: number, m: PPMeans, guess?: PPSample): PPSample {
+type PPCtx = { net: PPNet; vin: number; m: PPMeans; i1: number | undefined; i2: number | undefined; v: number | undefined; ig2: number | undefined };
+
+function platePP(c: PPCtx, vp0: number, vgk: number, vg2k: number, vk: number, guess: number | undefined): number {
+  const { model, halfRdc } = c.net;
+  if (halfRdc === 0) return model.plateCurrent(vp0 - vk, vgk, vg2k);
+  return solveIncreasing((x) => x - model.plateCurrent(vp0 - halfRdc * x - vk, vgk, vg2k), 0, Math.max(0, (vp0 - vk) / halfRdc), guess, TOL);
+}
+
+// Hot path: no named closures (see network.ts).
+function innerPP(c: PPCtx, vk: number): PPSample {
+  const { net, vin, m } = c;
   const { model } = net;
-  const inner = (vk: number) => {
-    const vgk1 = net.gridBias + vin - vk;
-    const vgk2 = net.gridBias - vin - vk;
-    let vg2 = vk;
-    let ig2a = 0;
-    let ig2b = 0;
-    const s = net.screen;
-    if (s && model.kind === 'pentode') {
-      const v0 = s.supply - s.dc * m.ig2 + s.ac * m.ig2;
-      if (s.ac === 0) {
-        vg2 = v0;
-      } else {
-        const total = solveIncreasing(
-          (x) => x - model.screenCurrent(vgk1, v0 - s.ac * x - vk) - model.screenCurrent(vgk2, v0 - s.ac * x - vk),
-          0,
-          Math.max(0, (v0 - vk) / s.ac),
-          guess ? guess.ig2a + guess.ig2b : undefined,
-          TOL,
-        );
-        vg2 = v0 - s.ac * total;
-      }
-      ig2a = model.screenCurrent(vgk1, vg2 - vk);
-      ig2b = model.screenCurrent(vgk2, vg2 - vk);
+  const vgk1 = net.gridBias + vin - vk;
+  const vgk2 = net.gridBias - vin - vk;
+  let vg2 = vk;
+  let ig2a = 0;
+  let ig2b = 0;
+  const s = net.screen;
+  if (s && model.kind === 'pentode') {
+    const v0 = s.supply - s.dc * m.ig2 + s.ac * m.ig2;
+    if (s.ac === 0) {
+      vg2 = v0;
+    } else {
+      const total = solveIncreasing(
+        (x) => x - model.screenCurrent(vgk1, v0 - s.ac * x - vk) - model.screenCurrent(vgk2, v0 - s.ac * x - vk),
+        0,
+        Math.max(0, (v0 - vk) / s.ac),
+        c.ig2,
+        TOL,
+      );
+      c.ig2 = total;
+      vg2 = v0 - s.ac * total;
     }
-    const vg2k = vg2 - vk;
-    const plate = (vp0: number, vgk: number, g?: number) =>
-      net.halfRdc === 0
-        ? model.plateCurrent(vp0 - vk, vgk, vg2k)
-        : solveIncreasing((x) => x - model.plateCurrent(vp0 - net.halfRdc * x - vk, vgk, vg2k), 0, Math.max(0, (vp0 - vk) / net.halfRdc), g, TOL);
-    let i1 = 0;
-    let i2 = 0;
-    const r = (v: number) => {
-      i1 = plate(net.supply - v, vgk1, guess?.i1);
-      i2 = plate(net.supply + v, vgk2, guess?.i2);
-      return v - ((i1 - i2) * net.raa) / 4;
-    };
-    const span = net.supply * 1.01 + 1;
-    const v = solveIncreasing(r, -span, span, guess?.v, 1e-11);
-    r(v);
-    const ig1 = model.gridCurrent(vgk1);
-    const ig2 = model.gridCurrent(vgk2);
-    return { i1, i2, ig2a, ig2b, ig1, ig2, v, vk, vg2 };
-  };
-  const total = (s: PPSample) => s.i1 + s.i2 + s.ig2a + s.ig2b + s.ig1 + s.ig2;
+    ig2a = model.screenCurrent(vgk1, vg2 - vk);
+    ig2b = model.screenCurrent(vgk2, vg2 - vk);
+  }
+  const vg2k = vg2 - vk;
+  const span = net.supply * 1.01 + 1;
+  const v = solveIncreasing(
+    (x) => {
+      c.i1 = platePP(c, net.supply - x, vgk1, vg2k, vk, c.i1);
+      c.i2 = platePP(c, net.supply + x, vgk2, vg2k, vk, c.i2);
+      return x - ((c.i1 - c.i2) * net.raa) / 4;
+    },
+    -span,
+    span,
+    c.v,
+    1e-11,
+  );
+  c.v = v;
+  const i1 = platePP(c, net.supply - v, vgk1, vg2k, vk, c.i1);
+  const i2 = platePP(c, net.supply + v, vgk2, vg2k, vk, c.i2);
+  return { i1, i2, ig2a, ig2b, ig1: model.gridCurrent(vgk1), ig2: model.gridCurrent(vgk2), v, vk, vg2 };
+}
+
+const totalPP = (s: PPSample) => s.i1 + s.i2 + s.ig2a + s.ig2b + s.ig1 + s.ig2;
+
+function solvePP(net: PPNet, vin: number, m: PPMeans, guess?: PPSample): PPSample {
+  const c: PPCtx = { net, vin, m, i1: guess?.i1, i2: guess?.i2, v: guess?.v, ig2: guess ? guess.ig2a + guess.ig2b : undefined };
   const vkBase = net.rk * m.ik;
-  if (net.rkAc === 0) return inner(vkBase);
-  const vkOf = (ik: number) => vkBase + net.rkAc * (ik - m.ik);
-  const h = (ik: number) => ik - total(inner(vkOf(ik)));
-  const start = Math.max(2 * (guess ? total(guess) : 0), 1e-3);
-  const hi = expandUpper(h, start, 1e4) ?? start;
-  return inner(vkOf(solveIncreasing(h, 0, hi, guess ? total(guess) : undefined, 1e-14)));
+  if (net.rkAc === 0) return innerPP(c, vkBase);
+  const g = guess ? totalPP(guess) : undefined;
+  let hi = Math.max(2 * (g ?? 0), 1e-3);
+  let ik = solveIncreasing((x) => x - totalPP(innerPP(c, vkBase + net.rkAc * (x - m.ik))), 0, hi, g, 1e-14);
+  if (ik >= hi * (1 - 1e-12)) {
+    hi = expandUpper((x) => x - totalPP(innerPP(c, vkBase + net.rkAc * (x - m.ik))), hi, 1e4) ?? hi;
+    ik = solveIncreasing((x) => x - totalPP(innerPP(c, vkBase + net.rkAc * (x - m.ik))), 0, hi, undefined, 1e-14);
+  }
+  return innerPP(c, vkBase + net.rkAc * (ik - m.ik));
 }
 
 const dbOf = (ratio: number) => (ratio > 0 ? Math.max(-200, 20 * Math.log10(ratio)) : -200);
@@ -152,12 +168,12 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   const keys: Array<keyof PPMeans> = [];
   if (bypassed) keys.push('ik');
   if (screen && screen.ac !== screen.dc) keys.push('ig2');
-  const cycleAt = (amp: number) => {
-    const drive = sineDrive(amp);
-    return steadyState<PPMeans, PPSample[]>(keys, m0, (m, count) => {
+  const cycleAt = (amp: number, count = SAMPLES) => {
+    const drive = sineDrive(amp, count);
+    return steadyState<PPMeans, PPSample[]>(keys, m0, (m, n) => {
       const samples: PPSample[] = [];
       let prev = seed;
-      for (const vin of count ? sineDrive(amp, count) : drive) {
+      for (const vin of n ? sineDrive(amp, n) : drive) {
         prev = solvePP(net, vin, m, prev);
         samples.push(prev);
       }
@@ -180,7 +196,8 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   const p5 = amp > 0 ? fivePoint(at(amp), at(amp / 2), 2 * seed.v, at(-amp / 2), at(-amp)) : null;
   const p3 = p5 ? threePoint(at(amp), 2 * seed.v, at(-amp)) : null;
 
-  const solve = (a: number) => solvePP(net, a, m0, seed);
+  let last = seed;
+  const solve = (a: number) => (last = solvePP(net, a, m0, last));
   const candidates: Array<[HeadroomLimit, number | null]> = [
     ['grid-conduction', firstCrossing((a) => gridBias + a - solve(a).vk, input.supply)],
     ['plate-saturation', firstCrossing((a) => { const s = solve(a); return 0.15 * vak0 - (plate1(s) - s.vk); }, input.supply)],
@@ -190,7 +207,8 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   for (const [name, value] of candidates) if (value !== null && value < best[1]) best = [name, value];
   const swing = Math.abs(at(best[1]) - at(-best[1])) / 2;
 
-  const full = best[1] > 0 ? cycleAt(best[1]).result : samples;
+  // dissipation is an average: a 64-sample cycle is ample
+  const full = best[1] > 0 ? cycleAt(best[1], 64).result : samples;
   const fullDissipation = mean(full.map((s) => (plate1(s) - s.vk) * s.i1));
   if (input.class === 'A' && amp > 0 && Math.min(...samples.map((s) => s.i2)) < 0.01 * op.ia) {
     warnings.push('Declared class A, but each tube cuts off for part of the cycle at this drive (class AB operation).');

@@ -249,7 +249,9 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
 }
 
 function headroomOf(net: SingleTubeNetwork, m: Means, op: SampleState, supply: number) {
-  const solve = (vin: number) => solveNetwork(net, vin, m, 0, op);
+  // continuation: each search step starts from the state solved last, which is close to the next one
+  let last = op;
+  const solve = (vin: number) => (last = solveNetwork(net, vin, m, 0, last));
   const limit = supply;
   const vak0 = op.vp - op.vk;
   const candidates: Array<[HeadroomLimit, number | null]> = [
