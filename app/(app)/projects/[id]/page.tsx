@@ -1,0 +1,23 @@
+import type { Metadata } from 'next';
+import { notFound } from 'next/navigation';
+import { ProjectView } from '@/components/projects/project-view';
+import { ApiError } from '@/lib/api/errors';
+import { can } from '@/lib/auth/policy';
+import { requirePageUser } from '@/lib/auth/session';
+import { getProject, type ProjectDetail } from '@/lib/db/projects';
+
+export const metadata: Metadata = { title: 'Project' };
+
+export default async function ProjectPage({ params }: { params: Promise<{ id: string }> }) {
+  const user = await requirePageUser('projects:read');
+  const id = Number((await params).id);
+  if (!Number.isInteger(id) || id <= 0) notFound();
+  let project: ProjectDetail;
+  try {
+    project = await getProject(id);
+  } catch (err) {
+    if (err instanceof ApiError && err.code === 'not_found') notFound();
+    throw err;
+  }
+  return <ProjectView initialProject={project} canWrite={can(user.role, 'projects:write')} />;
+}
