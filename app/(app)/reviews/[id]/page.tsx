@@ -1,0 +1,94 @@
+import type { Metadata } from 'next';
+import Link from 'next/link';
+import { notFound } from 'next/navigation';
+import { DecisionForm } from '@/components/reviews/decision-form';
+import { FrozenResults } from '@/components/reviews/frozen-results';
+import { RevisionDiffView } from '@/components/reviews/revision-diff';
+import { Caution } from '@/components/shell/caution';
+import { StatusBadge } from '@/components/ui/badge';
+import { Card, CardBody, CardHeader, PageHeader } from '@/components/ui/card';
+import { ApiError } from '@/lib/api/errors';
+import { requirePageUser } from '@/lib/auth/session';
+import { decisionBlocker, getRevision } from '@/lib/db/revisions';
+import { formatDateTime } from '@/lib/utils';
+
+export const metadata: Metadata = { title: 'Revision' };
+export const dynamic = 'force-dynamic';
+
+export default async function RevisionPage({ params }: { params: Promise<{ id: string }> }) {
+  const user = await requirePageUser('reviews:read');
+  const { id } = await params;
+  if (!/^\d+$/.test(id)) notFound();
+  let rev;
+  try {
+    rev = await getRevision(Number(id));
+  } catch (err) {
+    if (err instanceof ApiError && err.code === 'not_found') notFound();
+    throw err;
+  }
+  const blocker = decisionBlocker(user, rev);
+  return (
+    <div className="space-y-5">
+      <PageHeader
+        title={`${rev.projectName} · revision ${rev.number}`}
+        subtitle={
+          <>
+            Submitted by {rev.submittedBy?.displayName ?? 'unknown'} on {formatDateTime(rev.submittedAt)} · <Link href={`/projects/${rev.projectId}`} className="underline underline-offset-2">open the project</Link>
+          </>
+        }
+        actions={
+          <a href={`/api/revisions/${rev.id}/report`} className="inline-flex h-9 items-center rounded-md border border-rule bg-sheet px-3.5 text-sm font-medium hover:bg-paper">
+            PDF report
+          </a>
+        }
+      />
+      <Caution />
+      <div className="grid gap-5 xl:grid-cols-[minmax(0,1fr)_380px]">
+        <div className="min-w-0 space-y-5">
+          <RevisionDiffView diff={rev.diff} number={rev.number} />
+          <FrozenResults snapshot={rev.snapshot} />
+        </div>
+        <div className="space-y-5">
+          <Card>
+            <CardHeader title="Revision" actions={<StatusBadge status={rev.state} />} />
+            <CardBody className="space-y-2 text-sm">
+              <p>
+                <span className="text-muted">Content hash (SHA-256)</span>
+                <br />
+                <span className="num break-all text-xs" data-testid="content-hash">
+                  {rev.contentHash}
+                </span>
+              </p>
+              <p className={rev.hashVerified ? 'text-xs text-ok' : 'text-xs text-over'} data-testid="hash-check">
+                {rev.hashVerified ? '✓ The stored content matches its hash.' : '✗ The stored content does not match its hash.'}
+              </p>
+              <p className="text-xs text-muted">
+                {rev.state === 'approved'
+                  ? 'Approved revisions cannot be changed or deleted. A later edit to the project starts a new draft.'
+                  : 'The content of a submitted revision is frozen; later edits to the project do not change it.'}
+              </p>
+              {rev.base ? (
+                <p className="text-xs text-muted">
+                  Compared with <Link href={`/reviews/${rev.base.id}`} className="underline underline-offset-2">approved revision {rev.base.number}</Link>.
+                </p>
+              ) : null}
+            </CardBody>
+          </Card>
+          {rev.decision ? (
+            <Card>
+              <CardHeader title="Decision" actions={<StatusBadge status={rev.state} />} />
+              <CardBody className="space-y-2 text-sm" data-testid="decision">
+                <p>
+                  {rev.decision.decision === 'approve' ? 'Approved' : 'Changes requested'} by <b>{rev.decision.reviewer?.displayName ?? 'unknown'}</b> on {formatDateTime(rev.decision.createdAt)}.
+                </p>
+                {rev.decision.comment ? <blockquote className="whitespace-pre-wrap border-l-4 border-heater bg-paper px-3 py-2">{rev.decision.comment}</blockquote> : null}
+              </CardBody>
+            </Card>
+          ) : (
+            <DecisionForm revisionId={rev.id} number={rev.number} blocker={blocker} />
+          )}
+        </div>
+      </div>
+    </div>
+  );
+}

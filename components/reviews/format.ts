@@ -1,0 +1,22 @@
+import { formatEng } from '@/lib/units';
+
+export function fmtValue(v: unknown, unit: string): string {
+  if (v === null || v === undefined) return '—';
+  if (typeof v === 'number') {
+    if (!Number.isFinite(v)) return '—';
+    if (unit === '%') return `${v.toFixed(2)} %`;
+    if (unit === '') return Math.abs(v) >= 1000 || (Math.abs(v) < 0.01 && v !== 0) ? formatEng(v, '') : String(Number(v.toPrecision(4)));
+    return formatEng(v, unit, 4);
+  }
+  if (typeof v === 'boolean') return v ? 'yes' : 'no';
+  return String(v);
+}
+
+export function fmtRelative(r: number | null) {
+  if (r === null || !Number.isFinite(r)) return '';
+  const p = r * 100;
+  if (Math.abs(p) < 0.05) return '±0 %';
+  return `${p > 0 ? '+' : '−'}${Math.abs(p).toFixed(Math.abs(p) < 10 ? 1 : 0)} %`;
+}
+
+export const STATE_WORDS = { submitted: 'waiting for a decision', approved: 'approved', 'changes-requested': 'changes requested' } as const;

@@ -1,0 +1,59 @@
+import { StatusBadge } from '@/components/ui/badge';
+import { Card, CardBody, CardHeader } from '@/components/ui/card';
+import { stageResults } from '@/lib/review/diff';
+import type { RevisionSnapshot } from '@/lib/review/types';
+import { fmtValue } from './format';
+
+// The engine's results exactly as frozen in the revision: what the reviewer signs off.
+export function FrozenResults({ snapshot }: { snapshot: RevisionSnapshot }) {
+  return (
+    <Card>
+      <CardHeader title="Frozen results" actions={<span className="text-xs text-muted">as calculated when submitted</span>} />
+      <CardBody className="grid gap-5 lg:grid-cols-2" data-testid="frozen-results">
+        {snapshot.stages.map((s) => (
+          <section key={s.id} className="space-y-2">
+            <h3 className="text-sm font-semibold">
+              {s.position}. {s.name} <span className="num text-xs font-normal text-muted">{s.tubeDesignation} · {s.topology.replace(/-/g, ' ')}</span>
+            </h3>
+            {s.analysisError ? (
+              <p role="alert" className="rounded-md border border-over/40 bg-over/10 px-3 py-2 text-sm">
+                Calculation error: {s.analysisError.message}
+              </p>
+            ) : null}
+            <table className="w-full text-sm">
+              <tbody className="divide-y divide-rule">
+                {stageResults(s)
+                  .filter((r) => r.value !== null)
+                  .map((r) => (
+                    <tr key={r.path}>
+                      <td className="py-1 pr-2 text-muted">{r.label}</td>
+                      <td className="num py-1 text-right">{fmtValue(r.value, r.unit)}</td>
+                    </tr>
+                  ))}
+                {(s.analysis?.ratings ?? []).map((r) => (
+                  <tr key={r.key}>
+                    <td className="py-1 pr-2 text-muted">{r.label}</td>
+                    <td className="num py-1 text-right">
+                      <span className="inline-flex items-center gap-2">
+                        {fmtValue(r.value, r.unit)}
+                        {r.limit ? <span className="text-xs text-muted">of {fmtValue(r.limit, r.unit)}</span> : null}
+                        <StatusBadge status={r.status} />
+                      </span>
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+            {s.analysis?.warnings?.length ? (
+              <ul className="list-disc pl-5 text-xs text-near">
+                {s.analysis.warnings.map((w) => (
+                  <li key={w}>{w}</li>
+                ))}
+              </ul>
+            ) : null}
+          </section>
+        ))}
+      </CardBody>
+    </Card>
+  );
+}

@@ -1,0 +1,104 @@
+import { Card, CardBody, CardHeader } from '@/components/ui/card';
+import type { RevisionDiff, StageDiff, ValueChange } from '@/lib/review/diff';
+import { cn } from '@/lib/utils';
+import { fmtRelative, fmtValue } from './format';
+
+function Rows({ changes, showSame }: { changes: ValueChange[]; showSame: boolean }) {
+  const rows = showSame ? changes : changes.filter((c) => c.change !== 'same');
+  if (!rows.length) return null;
+  return (
+    <tbody className="divide-y divide-rule">
+      {rows.map((c) => (
+        <tr key={c.path} data-path={c.path} className={c.change === 'same' ? 'text-muted' : undefined}>
+          <td className="py-1.5 pr-3">{c.label}</td>
+          <td className={cn('num py-1.5 pr-3 text-right', c.change !== 'same' && 'bg-over/5')}>{fmtValue(c.before, c.unit)}</td>
+          <td className={cn('num py-1.5 pr-3 text-right', c.change !== 'same' && 'bg-ok/5 font-medium')}>{fmtValue(c.after, c.unit)}</td>
+          <td className="num py-1.5 text-right text-xs text-muted">{c.change === 'changed' ? fmtRelative(c.relative) : c.change === 'same' ? '' : c.change}</td>
+        </tr>
+      ))}
+    </tbody>
+  );
+}
+
+function Head({ base, number }: { base: string; number: number }) {
+  return (
+    <thead className="border-b border-rule text-left text-xs uppercase tracking-wide text-muted">
+      <tr>
+        <th className="py-1.5 pr-3 font-medium">Quantity</th>
+        <th className="py-1.5 pr-3 text-right font-medium">{base}</th>
+        <th className="py-1.5 pr-3 text-right font-medium">Revision {number}</th>
+        <th className="py-1.5 text-right font-medium">Change</th>
+      </tr>
+    </thead>
+  );
+}
+
+function StageBlock({ s, base, number }: { s: StageDiff; base: string; number: number }) {
+  return (
+    <section className="space-y-2" data-testid={`diff-stage-${s.stageId}`} data-change={s.change}>
+      <h3 className="flex flex-wrap items-center gap-2 text-sm font-semibold">
+        {s.name} <span className="num text-xs font-normal text-muted">{s.tubeDesignation}</span>
+        <span className={cn('rounded px-1.5 py-0.5 text-xs font-medium', s.change === 'added' ? 'bg-ok/15 text-ok' : s.change === 'removed' ? 'bg-over/15 text-over' : s.change === 'changed' ? 'bg-near/15 text-near' : 'bg-rule/50 text-ink')}>
+          {s.change}
+        </span>
+      </h3>
+      {s.change === 'unchanged' ? (
+        <p className="text-xs text-muted">No change to the inputs or the results.</p>
+      ) : (
+        <div className="overflow-x-auto">
+          <table className="w-full min-w-[520px] text-sm">
+            <Head base={base} number={number} />
+            {s.inputs.length ? (
+              <>
+                <tbody>
+                  <tr>
+                    <td colSpan={4} className="pt-2 text-xs font-semibold uppercase tracking-wide text-muted">Inputs changed</td>
+                  </tr>
+                </tbody>
+                <Rows changes={s.inputs} showSame={false} />
+              </>
+            ) : null}
+            <tbody>
+              <tr>
+                <td colSpan={4} className="pt-3 text-xs font-semibold uppercase tracking-wide text-muted">Results</td>
+              </tr>
+            </tbody>
+            <Rows changes={s.results} showSame />
+          </table>
+        </div>
+      )}
+    </section>
+  );
+}
+
+export function RevisionDiffView({ diff, number }: { diff: RevisionDiff; number: number }) {
+  const base = diff.base ? `Approved rev. ${diff.base.number}` : 'Before';
+  return (
+    <Card>
+      <CardHeader
+        title={diff.base ? `What changed since approved revision ${diff.base.number}` : 'First revision: nothing approved to compare with'}
+        actions={
+          <span className="text-xs text-muted">
+            {diff.counts.changed} changed · {diff.counts.added} added · {diff.counts.removed} removed · {diff.counts.unchanged} unchanged
+          </span>
+        }
+      />
+      <CardBody className="space-y-6" data-testid="revision-diff">
+        {diff.project.length ? (
+          <section className="space-y-2">
+            <h3 className="text-sm font-semibold">Project</h3>
+            <div className="overflow-x-auto">
+              <table className="w-full min-w-[520px] text-sm">
+                <Head base={base} number={number} />
+                <Rows changes={diff.project} showSame={false} />
+              </table>
+            </div>
+          </section>
+        ) : null}
+        {diff.stages.map((s) => (
+          <StageBlock key={s.stageId} s={s} base={base} number={number} />
+        ))}
+      </CardBody>
+    </Card>
+  );
+}
