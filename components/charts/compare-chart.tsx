@@ -1,0 +1,82 @@
+'use client';
+
+// Two or three tube types overlaid on common axes: plate curves Ia(Va) or transfer curves Ia(Vg). Draws only.
+import { CartesianGrid, ComposedChart, Line, ResponsiveContainer, XAxis, YAxis } from 'recharts';
+import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceCeil, tickNumber, type LegendEntry } from './chart-parts';
+
+export type CompareSeriesInput = {
+  label: string;
+  /** plate curves: x = va; transfer: x = vg. Currents in A. */
+  curves: { key: string; points: { x: number; ia: number }[] }[];
+};
+
+// Hue and dash both differ, so the types stay apart in print and for colour-blind readers.
+export const COMPARE_STYLES = [
+  { color: COLORS.dcline, dash: undefined, kind: 'line' as const },
+  { color: COLORS.acline, dash: '8 4', kind: 'dashed' as const },
+  { color: COLORS.ink, dash: '2 3', kind: 'dashed' as const },
+];
+
+export function CompareChart({ series, mode, xMax, height = 420 }: { series: CompareSeriesInput[]; mode: 'plate' | 'transfer'; xMax?: number; height?: number }) {
+  if (series.length === 0) return <EmptyChart height={height}>Choose two or three types.</EmptyChart>;
+  const xs = series.flatMap((s) => s.curves.flatMap((c) => c.points.map((p) => p.x)));
+  const x0 = mode === 'plate' ? 0 : Math.min(...xs);
+  const x1 = mode === 'plate' ? (xMax ?? Math.max(...xs)) : 0;
+  // Plate curves: scale to the biggest current at mid-range so one large tube does not flatten the others entirely.
+  const iaAll = series.flatMap((s) => s.curves.flatMap((c) => c.points.map((p) => p.ia * 1e3)));
+  const iaMax = niceCeil(Math.max(...iaAll, 0.1) * 1.05);
+  const legend: LegendEntry[] = series.map((s, i) => ({ label: s.label, color: COMPARE_STYLES[i]!.color, kind: i === 0 ? 'thick' : 'dashed' }));
+  return (
+    <figure data-testid="compare-chart" aria-label={mode === 'plate' ? 'Plate curves of the compared types' : 'Transfer curves of the compared types'}>
+      <div style={{ height }}>
+        <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 700, height }}>
+          <ComposedChart margin={{ top: 12, right: 24, bottom: 22, left: 6 }}>
+            <CartesianGrid {...GRID} />
+            <XAxis
+              type="number"
+              dataKey="x"
+              domain={[x0, x1]}
+              allowDataOverflow
+              tick={TICK}
+              axisLine={AXIS_LINE}
+              tickLine={AXIS_LINE}
+              tickFormatter={tickNumber}
+              label={{ value: mode === 'plate' ? 'Plate voltage Va (V)' : 'Grid–cathode voltage Vg (V)', position: 'insideBottom', offset: -12, ...AXIS_LABEL }}
+            />
+            <YAxis
+              type="number"
+              dataKey="ia"
+              domain={[0, iaMax]}
+              allowDataOverflow
+              tick={TICK}
+              axisLine={AXIS_LINE}
+              tickLine={AXIS_LINE}
+              tickFormatter={tickNumber}
+              width={52}
+              label={{ value: 'Plate current Ia (mA)', angle: -90, position: 'insideLeft', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
+            />
+            {series.flatMap((s, i) =>
+              s.curves.map((c) => (
+                <Line
+                  key={`${i}-${c.key}`}
+                  data={c.points.map((p) => ({ x: p.x, ia: p.ia * 1e3 }))}
+                  dataKey="ia"
+                  name={`${s.label} ${c.key}`}
+                  type="linear"
+                  stroke={COMPARE_STYLES[i]!.color}
+                  strokeDasharray={COMPARE_STYLES[i]!.dash}
+                  strokeWidth={1.6}
+                  dot={false}
+                  activeDot={false}
+                  isAnimationActive={false}
+                  legendType="none"
+                />
+              )),
+            )}
+          </ComposedChart>
+        </ResponsiveContainer>
+      </div>
+      <ChartLegend entries={legend} className="mt-1" />
+    </figure>
+  );
+}
