@@ -19,3 +19,19 @@ export function threeHalvesTriodeCurrent(p: ThreeHalvesTriodeParams, va: number,
   const e = vg + va / p.mu;
   return e > 0 ? p.perveance * e * Math.sqrt(e) : 0;
 }
+
+/** out = [Ia, ∂Ia/∂Va, ∂Ia/∂Vg] of the 3/2-power triode. */
+export function threeHalvesTriodeCurrentD(p: ThreeHalvesTriodeParams, va: number, vg: number, out: Float64Array): number {
+  out[0] = 0;
+  out[1] = 0;
+  out[2] = 0;
+  if (!(va > 0)) return 0;
+  const e = vg + va / p.mu;
+  if (!(e > 0)) return 0;
+  const r = Math.sqrt(e);
+  const ia = p.perveance * e * r;
+  out[0] = ia;
+  out[2] = 1.5 * p.perveance * r;
+  out[1] = out[2] / p.mu;
+  return ia;
+}

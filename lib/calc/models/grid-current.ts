@@ -27,3 +27,11 @@ export function gridCurrent(vgk: number, rgi: number): number {
   }
   return i;
 }
+
+/** out = [Ig, dIg/dVgk]; the slope of the diode + resistance is 1/(VT/(IS + i) + r). */
+export function gridCurrentD(vgk: number, rgi: number, out: Float64Array): number {
+  const i = gridCurrent(vgk, rgi);
+  out[0] = i;
+  out[1] = vgk > 0 ? 1 / (THERMAL_VOLTAGE / (GRID_DIODE_IS + i) + rgi + GRID_DIODE_RS) : 0;
+  return i;
+}

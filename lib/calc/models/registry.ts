@@ -1,7 +1,14 @@
 import type { Tube } from '../../validation/stage';
-import { threeHalvesTriodeCurrent } from './child-langmuir';
-import { gridCurrent } from './grid-current';
-import { korenPentodePlateCurrent, korenPentodeScreenCurrent, korenTriodeCurrent } from './koren';
+import { threeHalvesTriodeCurrent, threeHalvesTriodeCurrentD } from './child-langmuir';
+import { gridCurrent, gridCurrentD } from './grid-current';
+import {
+  korenPentodePlateCurrent,
+  korenPentodePlateCurrentD,
+  korenPentodeScreenCurrent,
+  korenPentodeScreenCurrentD,
+  korenTriodeCurrent,
+  korenTriodeCurrentD,
+} from './koren';
 
 export type TubeCapacitances = { cgk: number; cga: number; cak: number };
 export type TubeRatings = NonNullable<Tube['ratings']>;
@@ -12,10 +19,24 @@ export interface TubeModel {
   plateCurrent(vak: number, vgk: number, vg2k: number): number;
   screenCurrent(vgk: number, vg2k: number): number;
   gridCurrent(vgk: number): number;
+  /**
+   * Optional analytic derivatives for the Newton solvers (the plain functions are the fallback).
+   * plate: out = [Ia, ∂Ia/∂Vak, ∂Ia/∂Vgk, ∂Ia/∂Vg2k]; screen: out = [Ig2, ∂/∂Vgk, ∂/∂Vg2k]; grid: out = [Ig, dIg/dVgk].
+   * Each returns the current, bit-identical to the plain function.
+   */
+  plateCurrentD?(vak: number, vgk: number, vg2k: number, out: Float64Array): number;
+  screenCurrentD?(vgk: number, vg2k: number, out: Float64Array): number;
+  gridCurrentD?(vgk: number, out: Float64Array): number;
   rgi: number;
   capacitances: TubeCapacitances;
   ratings: TubeRatings;
 }
+
+/**
+ * Count of tube-model evaluations (plate, screen or grid current, with or without derivatives) since the last
+ * reset: a load-independent cost measure used by the benchmark. One integer increment per call.
+ */
+export const modelEvaluations = { count: 0, newtonFallbacks: 0 };
 
 const ZERO_CAPS: TubeCapacitances = { cgk: 0, cga: 0, cak: 0 };
 
@@ -31,7 +52,8 @@ function common(tube: Tube) {
   const rgi = defaultRgi(tube);
   return {
     rgi,
-    gridCurrent: (vgk: number) => gridCurrent(vgk, rgi),
+    gridCurrent: (vgk: number) => (modelEvaluations.count++, gridCurrent(vgk, rgi)),
+    gridCurrentD: (vgk: number, out: Float64Array) => (modelEvaluations.count++, gridCurrentD(vgk, rgi, out)),
     capacitances: tube.capacitances ?? ZERO_CAPS,
     ratings: tube.ratings ?? {},
   };
@@ -41,19 +63,31 @@ const registry: { [M in Tube['model']]: Builder<M> } = {
   'koren-triode': (tube) => ({
     kind: 'triode',
     ...common(tube),
-    plateCurrent: (vak, vgk) => korenTriodeCurrent(tube, vak, vgk),
+    plateCurrent: (vak, vgk) => (modelEvaluations.count++, korenTriodeCurrent(tube, vak, vgk)),
+    plateCurrentD: (vak, vgk, _vg2k, out) => {
+      modelEvaluations.count++;
+      out[3] = 0;
+      return korenTriodeCurrentD(tube, vak, vgk, out);
+    },
     screenCurrent: () => 0,
   }),
   'koren-pentode': (tube) => ({
     kind: 'pentode',
     ...common(tube),
-    plateCurrent: (vak, vgk, vg2k) => korenPentodePlateCurrent(tube, vak, vgk, vg2k),
-    screenCurrent: (vgk, vg2k) => korenPentodeScreenCurrent(tube, vgk, vg2k),
+    plateCurrent: (vak, vgk, vg2k) => (modelEvaluations.count++, korenPentodePlateCurrent(tube, vak, vgk, vg2k)),
+    screenCurrent: (vgk, vg2k) => (modelEvaluations.count++, korenPentodeScreenCurrent(tube, vgk, vg2k)),
+    plateCurrentD: (vak, vgk, vg2k, out) => (modelEvaluations.count++, korenPentodePlateCurrentD(tube, vak, vgk, vg2k, out)),
+    screenCurrentD: (vgk, vg2k, out) => (modelEvaluations.count++, korenPentodeScreenCurrentD(tube, vgk, vg2k, out)),
   }),
   'child-langmuir': (tube) => ({
     kind: 'triode',
     ...common(tube),
-    plateCurrent: (vak, vgk) => threeHalvesTriodeCurrent(tube, vak, vgk),
+    plateCurrent: (vak, vgk) => (modelEvaluations.count++, threeHalvesTriodeCurrent(tube, vak, vgk)),
+    plateCurrentD: (vak, vgk, _vg2k, out) => {
+      modelEvaluations.count++;
+      out[3] = 0;
+      return threeHalvesTriodeCurrentD(tube, vak, vgk, out);
+    },
     screenCurrent: () => 0,
   }),
 };

@@ -1,5 +1,6 @@
-import type { TubeModel } from '../models/registry';
+import { modelEvaluations, type TubeModel } from '../models/registry';
 import { expandUpper, solveIncreasing } from '../solve';
+import { solveDenseInPlace } from './newton';
 
 /**
  * One tube in a linear network. DC paths use the *Dc resistances; signal deviations from the cycle means see
@@ -94,11 +95,186 @@ function gridVoltage(c: Ctx, ik: number): number {
   return c.net.gridOffset + c.net.gridPerCathodeCurrent * (c.dc ? ik : c.m.ik) + c.vin;
 }
 
+// Newton scratch (module-level: the engine is synchronous, and no allocation in the per-sample path)
+const PD = new Float64Array(4);
+const SD = new Float64Array(3);
+const GD = new Float64Array(2);
+const JAC = new Float64Array(9);
+const RHS = new Float64Array(3);
+
+/** Relative Newton step below which the iterate is taken as converged (the next error is ~ its square). */
+const NEWTON_STEP_TOL = 1e-9;
+const NEWTON_MAX_ITER = 40;
+
+function networkState(
+  ia: number,
+  ig2: number,
+  ig: number,
+  vp0: number,
+  rp: number,
+  kc: number,
+  rk: number,
+  ik: number,
+  g0: number,
+  gk: number,
+  pent: boolean,
+  v0s: number,
+  rs: number,
+): SampleState {
+  const vk = kc + rk * ik;
+  return { ia, ig2, ig, ik: ia + ig2 + ig, vp: vp0 - rp * ia, vk, vg: g0 + gk * ik, vg2: pent ? v0s - rs * ig2 : vk };
+}
+
+/** Keeps an electrode current in [0, v/r]: beyond it the electrode would sit below the cathode and draw nothing. */
+function clampPlate(i: number, v: number, r: number): number {
+  if (!(i > 0)) return 0;
+  if (r > 0) {
+    const hi = Math.max(0, v / r);
+    if (i > hi) return hi;
+  }
+  return i;
+}
+
+/**
+ * Newton on the whole network at once: unknowns (Ia, Ig2, Ik), residuals
+ *   F0 = Ia − Ia(Vak, Vgk, Vg2k),  F1 = Ig2 − Ig2(Vgk, Vg2k),  F2 = Ik − Ia − Ig2 − Ig(Vgk)
+ * with Vk = kc + rk·Ik, Vgk = g0 − kc + (gk − rk)·Ik, Vg2k = v0s − rs·Ig2 − Vk, Vak = vp0 − rp·Ia − Vk,
+ * analytic Jacobian, step halving on the residual norm. Returns null when the model has no derivatives or the
+ * iteration does not converge (the caller then uses the bracketing solver).
+ */
+function newtonNetwork(
+  net: SingleTubeNetwork,
+  dc: boolean,
+  m: Means,
+  vin: number,
+  injP: number,
+  injK: number,
+  start: SampleState,
+): SampleState | null {
+  const model = net.model;
+  const pD = model.plateCurrentD;
+  const gD = model.gridCurrentD;
+  if (!pD || !gD) return null;
+  const sc = net.screen;
+  const pent = sc !== null && model.kind === 'pentode';
+  const sD = model.screenCurrentD;
+  if (pent && !sD) return null;
+  const rp = dc ? net.plateDc : net.plateAc;
+  const vp0 = dc ? net.supply : net.supply - net.plateDc * m.ia + net.plateAc * (m.ia + injP);
+  const rk = dc ? net.cathodeDc : net.cathodeAc;
+  const kc = dc ? 0 : net.cathodeDc * m.ik + net.cathodeAc * (injK - m.ik);
+  const gk = dc ? net.gridPerCathodeCurrent : 0;
+  const g0 = net.gridOffset + (dc ? 0 : net.gridPerCathodeCurrent * m.ik) + vin;
+  const rs = pent ? (dc ? sc.dc : sc.ac) : 0;
+  const v0s = pent ? (dc ? sc.supply : sc.supply - sc.dc * m.ig2 + sc.ac * m.ig2) : 0;
+  const q = gk - rk;
+  const coupled = q !== 0 || rk !== 0;
+
+  let ia = Math.max(0, start.ia);
+  let ig2 = pent ? Math.max(0, start.ig2) : 0;
+  let ik = coupled ? Math.max(0, start.ik) : 0;
+  let f0 = 0;
+  let f1 = 0;
+  let f2 = 0;
+  let ig = 0;
+  let norm = Infinity;
+  let lambda = 1;
+  let pia = ia;
+  let pig2 = ig2;
+  let pik = ik;
+  let dia = 0;
+  let dig2 = 0;
+  let dik = 0;
+  for (let iter = 0; iter < NEWTON_MAX_ITER; iter++) {
+    // residual and Jacobian at (ia, ig2, ik)
+    const vk = kc + rk * ik;
+    const vgk = g0 - kc + q * ik;
+    const vg2k = pent ? v0s - rs * ig2 - vk : 0;
+    const vak = vp0 - rp * ia - vk;
+    const iaM = pD(vak, vgk, vg2k, PD);
+    let ig2M = 0;
+    if (pent && sD) ig2M = sD(vgk, vg2k, SD);
+    ig = gD(vgk, GD);
+    const n0 = ia - iaM;
+    const n1 = pent ? ig2 - ig2M : 0;
+    const n2 = ik - ia - ig2 - ig;
+    const nNorm = Math.abs(n0) + Math.abs(n1) + (coupled ? Math.abs(n2) : 0);
+    if (!Number.isFinite(nNorm)) return null;
+    if (iter > 0 && nNorm > norm && lambda > 1 / 256) {
+      // reject: halve the step from the last accepted point
+      lambda *= 0.5;
+      ik = coupled ? Math.max(0, pik + lambda * dik) : 0;
+      ia = clampPlate(pia + lambda * dia, vp0 - kc - rk * ik, rp);
+      ig2 = pent ? clampPlate(pig2 + lambda * dig2, v0s - kc - rk * ik, rs) : 0;
+      continue;
+    }
+    f0 = n0;
+    f1 = n1;
+    f2 = n2;
+    norm = nNorm;
+    if (norm === 0) return networkState(ia, ig2, ig, vp0, rp, kc, rk, ik, g0, gk, pent, v0s, rs);
+    const pa = PD[1] as number;
+    const pg = PD[2] as number;
+    const ps = PD[3] as number;
+    JAC[0] = 1 + pa * rp;
+    JAC[1] = pent ? ps * rs : 0;
+    JAC[2] = pa * rk - pg * q + ps * rk;
+    JAC[3] = 0;
+    JAC[4] = pent ? 1 + (SD[2] as number) * rs : 1;
+    JAC[5] = pent ? -(SD[1] as number) * q + (SD[2] as number) * rk : 0;
+    JAC[6] = -1;
+    JAC[7] = -1;
+    JAC[8] = 1 - (GD[1] as number) * q;
+    RHS[0] = -f0;
+    RHS[1] = -f1;
+    RHS[2] = -f2;
+    if (!solveDenseInPlace(3, JAC, RHS)) return null;
+    dia = RHS[0] as number;
+    dig2 = RHS[1] as number;
+    dik = coupled ? (RHS[2] as number) : 0;
+    pia = ia;
+    pig2 = ig2;
+    pik = ik;
+    lambda = 1;
+    ik = coupled ? Math.max(0, ik + dik) : 0;
+    ia = clampPlate(ia + dia, vp0 - kc - rk * ik, rp);
+    ig2 = pent ? clampPlate(ig2 + dig2, v0s - kc - rk * ik, rs) : 0;
+    const small =
+      Math.abs(ia - pia) <= NEWTON_STEP_TOL * ia + 1e-20 &&
+      Math.abs(ig2 - pig2) <= NEWTON_STEP_TOL * ig2 + 1e-20 &&
+      Math.abs(ik - pik) <= NEWTON_STEP_TOL * ik + 1e-20;
+    if (small) return networkState(ia, ig2, ig + (GD[1] as number) * q * (ik - pik), vp0, rp, kc, rk, ik, g0, gk, pent, v0s, rs);
+  }
+  return null;
+}
+
 /**
  * Solves the network for one instant. `means` null gives the DC operating point; otherwise capacitors hold the
  * voltages set by the mean currents. `inject` is a test current into the output node (for output impedance).
+ * With a guess (a nearby solved state) it runs Newton on the whole network; without one, or if Newton fails,
+ * nested bracketed 1-D solves.
  */
 export function solveNetwork(
+  net: SingleTubeNetwork,
+  vin: number,
+  means: Means | null,
+  inject = 0,
+  guess?: SampleState,
+): SampleState {
+  if (guess) {
+    const injP = net.output === 'plate' ? inject : 0;
+    const injK = net.output === 'cathode' ? inject : 0;
+    const r = newtonNetwork(net, means === null, means ?? ZERO_MEANS, vin, injP, injK, guess);
+    if (r) return r;
+    modelEvaluations.newtonFallbacks++;
+  }
+  return solveNetworkBracketed(net, vin, means, inject, guess);
+}
+
+const ZERO_MEANS: Means = { ia: 0, ig2: 0, ik: 0 };
+
+/** The nested-bracketing solver: one 1-D root solve per unknown current (robust; the fallback). */
+export function solveNetworkBracketed(
   net: SingleTubeNetwork,
   vin: number,
   means: Means | null,

@@ -8,6 +8,8 @@ import { expandUpper, solveIncreasing } from '../solve';
 import type { HeadroomLimit, StageAnalysis } from '../types';
 import { firstCrossing, mean, SAMPLES_PER_CYCLE as SAMPLES, sineDrive, steadyState } from './cycle';
 import { solveNetwork } from './network';
+import { modelEvaluations } from '../models/registry';
+import { solveDenseInPlace } from './newton';
 import { screenParts } from './pentode-amplifier';
 import { checkIdle, operatingPointOf, stagePlot } from './single-tube';
 
@@ -94,7 +96,177 @@ function innerPP(c: PPCtx, vk: number): PPSample {
 
 const totalPP = (s: PPSample) => s.i1 + s.i2 + s.ig2a + s.ig2b + s.ig1 + s.ig2;
 
+// Newton scratch (no allocation per sample)
+const P1 = new Float64Array(4);
+const P2 = new Float64Array(4);
+const S1 = new Float64Array(3);
+const S2 = new Float64Array(3);
+const G1 = new Float64Array(2);
+const G2 = new Float64Array(2);
+const JPP = new Float64Array(16);
+const RPP = new Float64Array(4);
+
+/**
+ * Newton on the whole push-pull circuit: unknowns (i1, i2, T = total screen current through a shared screen
+ * resistor, Ik), with v = (i1 − i2)·Raa/4, Vk = Rk·m.ik + RkAc·(Ik − m.ik),
+ *   F0 = i1 − Ia(Vct − v − Rdc/2·i1 − Vk, Vgk1, Vg2k),  F1 = i2 − Ia(Vct + v − Rdc/2·i2 − Vk, Vgk2, Vg2k),
+ *   F2 = T − Ig2(Vgk1, Vg2k) − Ig2(Vgk2, Vg2k),         F3 = Ik − (all cathode currents),
+ * unused unknowns held at 0 by identity rows. Analytic Jacobian, step halving; null if it does not converge.
+ */
+function newtonPP(net: PPNet, vin: number, m: PPMeans, guess: PPSample): PPSample | null {
+  const { model } = net;
+  const pD = model.plateCurrentD;
+  const gD = model.gridCurrentD;
+  const sD = model.screenCurrentD;
+  if (!pD || !gD) return null;
+  const s = net.screen;
+  const pent = s !== null && model.kind === 'pentode';
+  if (pent && !sD) return null;
+  const sac = pent ? s.ac : 0;
+  const v0 = pent ? s.supply - s.dc * m.ig2 + s.ac * m.ig2 : 0;
+  const useT = pent && sac !== 0;
+  const R = net.rkAc;
+  const useK = R !== 0;
+  const kc = net.rk * m.ik - R * m.ik;
+  const r = net.raa / 4;
+  const h = net.halfRdc;
+  const vct = net.supply;
+  let i1 = Math.max(0, guess.i1);
+  let i2 = Math.max(0, guess.i2);
+  let t = useT ? Math.max(0, guess.ig2a + guess.ig2b) : 0;
+  let ik = useK ? Math.max(0, totalPP(guess)) : 0;
+  let norm = Infinity;
+  let lambda = 1;
+  let p1 = i1;
+  let p2 = i2;
+  let pt = t;
+  let pk = ik;
+  let d1 = 0;
+  let d2 = 0;
+  let dt = 0;
+  let dk = 0;
+  let ig2a = 0;
+  let ig2b = 0;
+  let ig1 = 0;
+  let ig2 = 0;
+  for (let iter = 0; iter < 40; iter++) {
+    const vk = kc + R * ik;
+    const vgk1 = net.gridBias + vin - vk;
+    const vgk2 = net.gridBias - vin - vk;
+    const vg2k = pent ? v0 - sac * t - vk : 0;
+    const v = (i1 - i2) * r;
+    const a1 = pD(vct - v - h * i1 - vk, vgk1, vg2k, P1);
+    const a2 = pD(vct + v - h * i2 - vk, vgk2, vg2k, P2);
+    ig2a = pent && sD ? sD(vgk1, vg2k, S1) : 0;
+    ig2b = pent && sD ? sD(vgk2, vg2k, S2) : 0;
+    ig1 = gD(vgk1, G1);
+    ig2 = gD(vgk2, G2);
+    const n0 = i1 - a1;
+    const n1 = i2 - a2;
+    const n2 = useT ? t - ig2a - ig2b : 0;
+    const n3 = useK ? ik - i1 - i2 - ig2a - ig2b - ig1 - ig2 : 0;
+    const nNorm = Math.abs(n0) + Math.abs(n1) + Math.abs(n2) + Math.abs(n3);
+    if (!Number.isFinite(nNorm)) return null;
+    if (iter > 0 && nNorm > norm && lambda > 1 / 256) {
+      lambda *= 0.5;
+      i1 = Math.max(0, p1 + lambda * d1);
+      i2 = Math.max(0, p2 + lambda * d2);
+      t = useT ? Math.max(0, pt + lambda * dt) : 0;
+      ik = useK ? Math.max(0, pk + lambda * dk) : 0;
+      continue;
+    }
+    norm = nNorm;
+    if (norm === 0) break;
+    const ss1 = pent ? (S1[2] as number) : 0;
+    const ss2 = pent ? (S2[2] as number) : 0;
+    const sk = pent ? (S1[1] as number) + ss1 + (S2[1] as number) + ss2 : 0;
+    const pk1 = (P1[1] as number) + (P1[2] as number) + (pent ? (P1[3] as number) : 0);
+    const pk2 = (P2[1] as number) + (P2[2] as number) + (pent ? (P2[3] as number) : 0);
+    // row 0
+    JPP[0] = 1 + (P1[1] as number) * (r + h);
+    JPP[1] = -(P1[1] as number) * r;
+    JPP[2] = useT ? (P1[3] as number) * sac : 0;
+    JPP[3] = useK ? R * pk1 : 0;
+    // row 1
+    JPP[4] = -(P2[1] as number) * r;
+    JPP[5] = 1 + (P2[1] as number) * (r + h);
+    JPP[6] = useT ? (P2[3] as number) * sac : 0;
+    JPP[7] = useK ? R * pk2 : 0;
+    // row 2
+    JPP[8] = 0;
+    JPP[9] = 0;
+    JPP[10] = useT ? 1 + sac * (ss1 + ss2) : 1;
+    JPP[11] = useT && useK ? R * sk : 0;
+    // row 3
+    JPP[12] = useK ? -1 : 0;
+    JPP[13] = useK ? -1 : 0;
+    JPP[14] = useK && useT ? sac * (ss1 + ss2) : 0;
+    JPP[15] = useK ? 1 + R * sk + R * ((G1[1] as number) + (G2[1] as number)) : 1;
+    RPP[0] = -n0;
+    RPP[1] = -n1;
+    RPP[2] = -n2;
+    RPP[3] = -n3;
+    if (!solveDenseInPlace(4, JPP, RPP)) return null;
+    d1 = RPP[0] as number;
+    d2 = RPP[1] as number;
+    dt = useT ? (RPP[2] as number) : 0;
+    dk = useK ? (RPP[3] as number) : 0;
+    p1 = i1;
+    p2 = i2;
+    pt = t;
+    pk = ik;
+    lambda = 1;
+    i1 = Math.max(0, i1 + d1);
+    i2 = Math.max(0, i2 + d2);
+    t = useT ? Math.max(0, t + dt) : 0;
+    ik = useK ? Math.max(0, ik + dk) : 0;
+    const tol = 1e-9;
+    if (
+      Math.abs(i1 - p1) <= tol * i1 + 1e-20 &&
+      Math.abs(i2 - p2) <= tol * i2 + 1e-20 &&
+      Math.abs(t - pt) <= tol * t + 1e-20 &&
+      Math.abs(ik - pk) <= tol * ik + 1e-20
+    ) {
+      break;
+    }
+    if (iter === 39) return null;
+  }
+  const vk = kc + R * ik;
+  const vg2 = pent ? v0 - sac * t : vk;
+  return { i1, i2, ig2a, ig2b, ig1, ig2, v: (i1 - i2) * r, vk, vg2 };
+}
+
 function solvePP(net: PPNet, vin: number, m: PPMeans, guess?: PPSample): PPSample {
+  if (guess) {
+    const r = newtonPP(net, vin, m, guess);
+    if (r) return r;
+    modelEvaluations.newtonFallbacks++;
+  }
+  return solvePPBracketed(net, vin, m, guess);
+}
+
+/** Quadratic extrapolation of the next push-pull sample (a Newton start). */
+function extrapolatePP(a: PPSample, b?: PPSample, c?: PPSample): PPSample {
+  if (!b) return a;
+  if (!c) return { ...a, i1: 2 * a.i1 - b.i1, i2: 2 * a.i2 - b.i2, ig2a: 2 * a.ig2a - b.ig2a, ig2b: 2 * a.ig2b - b.ig2b, ig1: 2 * a.ig1 - b.ig1, ig2: 2 * a.ig2 - b.ig2 };
+  const q = (x: number, y: number, z: number) => Math.max(0, 3 * x - 3 * y + z);
+  return {
+    ...a,
+    i1: q(a.i1, b.i1, c.i1),
+    i2: q(a.i2, b.i2, c.i2),
+    ig2a: q(a.ig2a, b.ig2a, c.ig2a),
+    ig2b: q(a.ig2b, b.ig2b, c.ig2b),
+    ig1: q(a.ig1, b.ig1, c.ig1),
+    ig2: q(a.ig2, b.ig2, c.ig2),
+  };
+}
+
+/** The same instant half a period later: the drive is negated, so the two tubes swap roles. */
+function mirrorPP(s: PPSample): PPSample {
+  return { i1: s.i2, i2: s.i1, ig2a: s.ig2b, ig2b: s.ig2a, ig1: s.ig2, ig2: s.ig1, v: -s.v, vk: s.vk, vg2: s.vg2 };
+}
+
+function solvePPBracketed(net: PPNet, vin: number, m: PPMeans, guess?: PPSample): PPSample {
   const c: PPCtx = { net, vin, m, i1: guess?.i1, i2: guess?.i2, v: guess?.v, ig2: guess ? guess.ig2a + guess.ig2b : undefined };
   const vkBase = net.rk * m.ik;
   if (net.rkAc === 0) return innerPP(c, vkBase);
@@ -171,19 +343,23 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   const cycleAt = (amp: number, count = SAMPLES) => {
     const drive = sineDrive(amp, count);
     return steadyState<PPMeans, PPSample[]>(keys, m0, (m, n) => {
-      const samples: PPSample[] = [];
-      let prev = seed;
-      for (const vin of n ? sineDrive(amp, n) : drive) {
-        prev = solvePP(net, vin, m, prev);
-        samples.push(prev);
+      // Half-wave symmetry: the drive at k + N/2 is the negated drive at k, and the circuit is symmetric, so the
+      // second half-cycle is the first with the tubes swapped; only N/2 samples are solved.
+      const wave = n ? sineDrive(amp, n) : drive;
+      const count = wave.length;
+      const half = count / 2;
+      const samples: PPSample[] = new Array<PPSample>(count);
+      let ik = 0;
+      let ig2 = 0;
+      for (let k = 0; k < half; k++) {
+        const guess = k === 0 ? seed : extrapolatePP(samples[k - 1] as PPSample, samples[k - 2], samples[k - 3]);
+        const sk = solvePP(net, wave[k] ?? 0, m, guess);
+        samples[k] = sk;
+        samples[k + half] = mirrorPP(sk);
+        ik += totalPP(sk);
+        ig2 += sk.ig2a + sk.ig2b;
       }
-      return {
-        means: {
-          ik: mean(samples.map((s) => s.i1 + s.i2 + s.ig2a + s.ig2b + s.ig1 + s.ig2)),
-          ig2: mean(samples.map((s) => s.ig2a + s.ig2b)),
-        },
-        result: samples,
-      };
+      return { means: { ik: ik / half, ig2: ig2 / half }, result: samples };
     });
   };
   const amp = input.drive.amplitude;
