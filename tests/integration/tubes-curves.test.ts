@@ -32,7 +32,7 @@ let tubeId = 0;
 
 function form(bytes: Buffer | string, name: string, type: string, fields: Record<string, string> = { currentUnit: 'mA' }) {
   const f = new FormData();
-  f.set('file', new File([bytes], name, { type }));
+  f.set('file', new File([typeof bytes === 'string' ? bytes : new Uint8Array(bytes)], name, { type }));
   for (const [k, v] of Object.entries(fields)) f.set(k, v);
   return f;
 }
