@@ -36,6 +36,25 @@ export function niceCeil(v: number): number {
   return step * p;
 }
 
+/** A 1-2-5 step giving about `count` intervals over the span. */
+export function niceStep(span: number, count = 6): number {
+  if (!(span > 0) || !Number.isFinite(span)) return 1;
+  const raw = span / count;
+  const p = 10 ** Math.floor(Math.log10(raw));
+  const m = raw / p;
+  return (m < 1.5 ? 1 : m < 3.5 ? 2 : m < 7.5 ? 5 : 10) * p;
+}
+
+/** Round-number ticks covering [min, max]; the domain should be widened to the first and last. */
+export function niceTicks(min: number, max: number, count = 6): number[] {
+  const step = niceStep(max - min, count);
+  const start = Math.floor(min / step + 1e-9) * step;
+  const end = Math.ceil(max / step - 1e-9) * step;
+  const out: number[] = [];
+  for (let v = start; v <= end + step * 1e-6; v += step) out.push(Number(v.toPrecision(10)));
+  return out;
+}
+
 export type LegendEntry = { label: string; color: string; kind: 'line' | 'dashed' | 'dot' | 'bar' | 'thick' };
 
 export function ChartLegend({ entries, className }: { entries: LegendEntry[]; className?: string }) {

@@ -2,8 +2,7 @@
 
 // Plate curve family Ia(Va) with load lines, Pa(max) and the operating point. It only draws what it is given.
 import { CartesianGrid, ComposedChart, Line, ReferenceDot, ResponsiveContainer, Scatter, XAxis, YAxis } from 'recharts';
-import { formatEng } from '@/lib/units';
-import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceCeil, tickNumber, type LegendEntry } from './chart-parts';
+import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceCeil, niceTicks, tickNumber, type LegendEntry } from './chart-parts';
 
 /** Currents in A, voltages in V (the chart shows mA). */
 export type VaIa = { va: number; ia: number };
@@ -33,7 +32,7 @@ const maxOf = (pts: VaIa[] | undefined, key: 'va' | 'ia') => (pts ?? []).reduce(
 
 /** Grid-voltage label as practitioners write it on a curve: "−1.5 V". */
 export function gridLabel(vg: number): string {
-  return formatEng(vg, 'V', 3).replace('-', '−');
+  return `${Number(vg.toPrecision(3))} V`.replace('-', '−');
 }
 
 /** Turns the engine's `analysis.plot.curves` into chart series (drawing data only). */
@@ -64,11 +63,35 @@ function labelSpot(points: Row[], vaMax: number, iaMaxMa: number): Row | null {
   return last;
 }
 
+type CurveLabel = { key: string; text: string; va: number; ia: number; top: boolean; emphasis: boolean };
+
+// One label per curve where it leaves the plot; labels that would collide with a neighbour are dropped
+// (the bias curve's label always stays).
+function curveLabels(curves: PlateCurveSeries[], vaMax: number, iaMaxMa: number): CurveLabel[] {
+  const all: CurveLabel[] = [];
+  for (const c of curves) {
+    const spot = labelSpot(toMa(c.points), vaMax, iaMaxMa);
+    if (spot) all.push({ key: `l${c.vg}${c.emphasis ? 'b' : ''}`, text: c.label, va: spot.va, ia: spot.ia, top: spot.ia >= iaMaxMa * 0.97, emphasis: !!c.emphasis });
+  }
+  const kept: CurveLabel[] = [];
+  const near = (a: CurveLabel, b: CurveLabel) =>
+    a.top && b.top ? Math.abs(a.va - b.va) < vaMax * 0.07 : !a.top && !b.top ? Math.abs(a.ia - b.ia) < iaMaxMa * 0.05 : false;
+  for (const l of [...all].sort((a, b) => Number(b.emphasis) - Number(a.emphasis))) {
+    if (!kept.some((k) => near(k, l))) kept.push(l);
+  }
+  return kept;
+}
+
 export function PlateCurvesChart(props: PlateCurvesChartProps) {
   const { curves, paMax, dcLoadLine, acLoadLine, operatingPoint, measured, height = 420, stale = false, className } = props;
   if (curves.length === 0 && !dcLoadLine?.length) return <EmptyChart height={height}>No curves to draw yet.</EmptyChart>;
-  const { vaMax, iaMax } = plateAxisRange(props);
-  const iaMaxMa = iaMax * 1e3;
+  const ordered = [...curves].sort((a, b) => Number(!!a.emphasis) - Number(!!b.emphasis));
+  const range = plateAxisRange(props);
+  const xTicks = niceTicks(0, range.vaMax, 6);
+  const yTicks = niceTicks(0, range.iaMax * 1e3, 5);
+  const vaMax = xTicks[xTicks.length - 1] ?? range.vaMax;
+  const iaMaxMa = yTicks[yTicks.length - 1] ?? range.iaMax * 1e3;
+  const labels = curveLabels(ordered, vaMax, iaMaxMa);
   const legend: LegendEntry[] = [
     { label: 'Plate curves (Vg)', color: COLORS.curve, kind: 'line' },
     ...(curves.some((c) => c.emphasis) ? [{ label: 'Bias curve', color: COLORS.ink, kind: 'thick' as const }] : []),
@@ -78,7 +101,6 @@ export function PlateCurvesChart(props: PlateCurvesChartProps) {
     ...(operatingPoint ? [{ label: 'Operating point', color: COLORS.heater, kind: 'dot' as const }] : []),
     ...(measured?.length ? [{ label: 'Measured', color: COLORS.ink, kind: 'dot' as const }] : []),
   ];
-  const ordered = [...curves].sort((a, b) => Number(!!a.emphasis) - Number(!!b.emphasis));
   return (
     <figure
       className={className}
@@ -96,7 +118,7 @@ export function PlateCurvesChart(props: PlateCurvesChartProps) {
               dataKey="va"
               domain={[0, vaMax]}
               allowDataOverflow
-              tickCount={7}
+              ticks={xTicks}
               tick={TICK}
               axisLine={AXIS_LINE}
               tickLine={AXIS_LINE}
@@ -108,7 +130,7 @@ export function PlateCurvesChart(props: PlateCurvesChartProps) {
               dataKey="ia"
               domain={[0, iaMaxMa]}
               allowDataOverflow
-              tickCount={6}
+              ticks={yTicks}
               tick={TICK}
               axisLine={AXIS_LINE}
               tickLine={AXIS_LINE}
@@ -143,19 +165,16 @@ export function PlateCurvesChart(props: PlateCurvesChartProps) {
             {measured?.length ? (
               <Scatter data={toMa(measured)} dataKey="ia" name="Measured" fill={COLORS.ink} shape={MeasuredMark} isAnimationActive={false} legendType="none" />
             ) : null}
-            {ordered.map((c) => {
-              const spot = labelSpot(toMa(c.points), vaMax, iaMaxMa);
-              return spot ? (
-                <ReferenceDot
-                  key={`l${c.vg}${c.emphasis ? 'b' : ''}`}
-                  x={spot.va}
-                  y={spot.ia}
-                  r={0}
-                  ifOverflow="hidden"
-                  label={{ value: c.label, position: spot.ia >= iaMaxMa * 0.97 ? 'insideTopRight' : 'insideBottomRight', fill: c.emphasis ? COLORS.ink : COLORS.muted, fontSize: 10, offset: 4 }}
-                />
-              ) : null;
-            })}
+            {labels.map((l) => (
+              <ReferenceDot
+                key={l.key}
+                x={l.va}
+                y={l.ia}
+                r={0}
+                ifOverflow="hidden"
+                label={{ value: l.text, position: l.top ? 'insideTopRight' : 'insideBottomRight', fill: l.emphasis ? COLORS.ink : COLORS.muted, fontSize: 10, offset: 4 }}
+              />
+            ))}
             {operatingPoint ? (
               <ReferenceDot x={operatingPoint.va} y={operatingPoint.ia * 1e3} r={6} fill={COLORS.heater} stroke={COLORS.sheet} strokeWidth={2} ifOverflow="extendDomain" />
             ) : null}

@@ -2,7 +2,7 @@
 
 // Transfer curve Ia(Vg) at the operating plate voltage, with the bias point.
 import { CartesianGrid, ComposedChart, Line, ReferenceDot, ReferenceLine, ResponsiveContainer, XAxis, YAxis } from 'recharts';
-import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceCeil, tickNumber } from './chart-parts';
+import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceTicks, tickNumber } from './chart-parts';
 
 export type TransferChartProps = {
   /** vg in V, ia in A */
@@ -19,7 +19,10 @@ export function TransferChart({ points, biasPoint, plateVoltage, height = 280, s
   const data = points.map((p) => ({ vg: p.vg, ia: p.ia * 1e3 }));
   const vgMin = Math.min(...points.map((p) => p.vg));
   const vgMax = Math.max(0, ...points.map((p) => p.vg));
-  const iaMax = niceCeil(Math.max(...data.map((d) => d.ia), (biasPoint?.ia ?? 0) * 1e3) * 1.05);
+  // the data's own ends bound the x axis (ticks inside it); the y axis starts at zero on a round number
+  const xTicks = niceTicks(vgMin, vgMax, 6).filter((t) => t >= vgMin - 1e-9 && t <= vgMax + 1e-9);
+  const yTicks = niceTicks(0, Math.max(...data.map((d) => d.ia), (biasPoint?.ia ?? 0) * 1e3) * 1.02, 5);
+  const iaMax = yTicks[yTicks.length - 1] ?? 1;
   return (
     <figure data-testid="transfer-chart" data-stale={stale ? 'true' : 'false'} aria-label="Transfer curve: plate current against grid voltage">
       <div style={{ height }} className={stale ? 'opacity-60' : undefined}>
@@ -30,6 +33,7 @@ export function TransferChart({ points, biasPoint, plateVoltage, height = 280, s
               type="number"
               dataKey="vg"
               domain={[vgMin, vgMax]}
+              ticks={xTicks}
               tick={TICK}
               axisLine={AXIS_LINE}
               tickLine={AXIS_LINE}
@@ -39,6 +43,7 @@ export function TransferChart({ points, biasPoint, plateVoltage, height = 280, s
             <YAxis
               type="number"
               domain={[0, iaMax]}
+              ticks={yTicks}
               allowDataOverflow
               tick={TICK}
               axisLine={AXIS_LINE}

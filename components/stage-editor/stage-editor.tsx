@@ -32,11 +32,11 @@ import { PlotPanel } from './plot-panel';
 import { RatingsPanel, ResultsPanel } from './results-panel';
 import { StageInputs } from './stage-inputs';
 
-type Props = { projectId: number; stageId?: number; tubes: TubeOption[]; canEdit: boolean };
+type Props = { projectId: number; stageId?: number; tubes: TubeOption[]; canEdit: boolean; initialProject?: ProjectDetail; initialStage?: StageDTO };
 
-export function StageEditor({ projectId, stageId, tubes, canEdit }: Props) {
-  const project = useQuery(projectQueryOptions(projectId));
-  const stage = useQuery({ ...stageQueryOptions(stageId ?? 0), enabled: stageId !== undefined, staleTime: Infinity });
+export function StageEditor({ projectId, stageId, tubes, canEdit, initialProject, initialStage }: Props) {
+  const project = useQuery({ ...projectQueryOptions(projectId), initialData: initialProject });
+  const stage = useQuery({ ...stageQueryOptions(stageId ?? 0), enabled: stageId !== undefined, staleTime: Infinity, initialData: initialStage });
   const error = project.error ?? stage.error;
   if (error) {
     return (
@@ -214,8 +214,20 @@ function StageEditorForm({ project, stage, tubes, canEdit }: { project: ProjectD
           <h1 className="mt-0.5 truncate text-xl font-semibold tracking-tight">{isNew ? 'New stage' : values.name || stage.name}</h1>
           <p className="mt-0.5 flex flex-wrap items-center gap-2 text-sm text-muted">
             <span>{topologyLabel(values.topology)}</span>
-            {tube ? <span className="num">· {tube.designation}</span> : null}
-            {!isNew ? <span className="num">· version {version}</span> : null}
+            {tube ? (
+              <>
+                <span aria-hidden>·</span>
+                <span className="num">{tube.designation}</span>
+              </>
+            ) : null}
+            {!isNew ? (
+              <>
+                <span aria-hidden>·</span>
+                <span className="num" data-testid="stage-version">
+                  version {version}
+                </span>
+              </>
+            ) : null}
             <StatusBadge status={project.status} />
             {project.archived ? <Badge>archived</Badge> : null}
           </p>

@@ -119,7 +119,8 @@ export function StageInputs({
 
       <Group title="Supply">
         <Q name="supply" label="B+ supply" hint="At the top of the plate load" />
-        <Field label="B+ node" htmlFor="f-supplyNode" hint={supplyNodes.length ? undefined : 'No supply nodes in this project yet'}>
+        <Q name="heaterElevation" label="Heater elevation" hint="Heater DC above ground" />
+        <Field label="B+ node" htmlFor="f-supplyNode" className="col-span-2" hint={supplyNodes.length ? 'Where this stage draws from in the project supply' : 'No supply nodes in this project yet'}>
           <Select id="f-supplyNode" {...register('supplyNode')}>
             <option value="">Not assigned</option>
             {supplyNodes.map((n) => (
@@ -129,8 +130,6 @@ export function StageInputs({
             ))}
           </Select>
         </Field>
-        <Q name="heaterElevation" label="Heater elevation" hint="Heater DC above ground" />
-        <Q name="derating" label="Near-limit fraction" hint="e.g. 0.7 flags ratings above 70 %" />
       </Group>
 
       <Group title="Plate">
@@ -219,6 +218,10 @@ export function StageInputs({
         <Q name="drive.amplitude" label="Drive amplitude" hint="Grid signal, peak" />
         <Q name="drive.frequency" label="Frequency" />
         <Q name="sourceResistance" label="Source resistance" hint="Of what drives the grid" />
+      </Group>
+
+      <Group title="Rating checks">
+        <Q name="derating" label="Near-limit fraction" hint="0.7 marks ratings above 70 % as near" className="col-span-2" />
       </Group>
       <p className="px-4 pb-3 text-xs text-muted">
         Type values as you would write them: <span className="num">100k</span>, <span className="num">4k7</span>, <span className="num">22u</span>,{' '}

@@ -5,40 +5,12 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/r
 import { useEffect, useMemo, useState } from 'react';
 import type { StageAnalysis } from '@/lib/calc';
 import type { StageBody } from '@/lib/validation/stage';
-import type { ProjectSupplyRecord } from '@/models/types';
 import { ApiRequestError, fetchJson } from './fetch-json';
 
-/** As the shared projects/stages contract defines it. */
-export type StageDTO = {
-  id: number;
-  projectId: number;
-  position: number;
-  name: string;
-  topology: string;
-  tubeTypeId: number;
-  tubeModelId: number | null;
-  tubeDesignation: string;
-  supplyNode: string | null;
-  inputs: Record<string, unknown>;
-  version: number;
-  analysis: StageAnalysis | null;
-  analysisError: { code: string; message: string } | null;
-  updatedAt: string;
-};
+// Types only: erased at build time, so the server-only data layer is not pulled into the browser.
+import type { ProjectDetail, StageDTO } from '@/lib/db/projects';
 
-export type ProjectDetail = {
-  id: number;
-  name: string;
-  description: string;
-  status: 'draft' | 'in-review' | 'approved' | 'changes-requested';
-  archived: boolean;
-  version: number;
-  owner: { id: number; displayName: string } | null;
-  supply: ProjectSupplyRecord;
-  benchTolerances: Record<string, number>;
-  updatedAt: string;
-  stages: StageDTO[];
-};
+export type { ProjectDetail, StageDTO };
 
 export type AnalyzeBody = StageBody & { tubeModelId?: number };
 

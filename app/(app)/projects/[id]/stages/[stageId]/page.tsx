@@ -1,8 +1,11 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { StageEditor } from '@/components/stage-editor/stage-editor';
+import { ApiError } from '@/lib/api/errors';
 import { can } from '@/lib/auth/policy';
 import { requirePageUser } from '@/lib/auth/session';
+import { getProject } from '@/lib/db/projects';
+import { getStage } from '@/lib/db/stages';
 import { listTubeOptions } from '@/lib/db/tubes';
 
 export const metadata: Metadata = { title: 'Stage editor' };
@@ -13,8 +16,12 @@ export default async function StagePage({ params }: { params: Promise<{ id: stri
   const user = await requirePageUser('projects:read');
   const { id, stageId } = await params;
   const projectId = positiveInt(id);
-  const stage = positiveInt(stageId);
-  if (projectId === null || stage === null) notFound();
-  const tubes = await listTubeOptions();
-  return <StageEditor projectId={projectId} stageId={stage} tubes={tubes} canEdit={can(user.role, 'projects:write')} />;
+  const stageNo = positiveInt(stageId);
+  if (projectId === null || stageNo === null) notFound();
+  const [project, stage, tubes] = await Promise.all([getProject(projectId), getStage(stageNo), listTubeOptions()]).catch((e: unknown) => {
+    if (e instanceof ApiError && e.code === 'not_found') notFound();
+    throw e;
+  });
+  if (stage.projectId !== project.id) notFound();
+  return <StageEditor projectId={project.id} stageId={stage.id} tubes={tubes} canEdit={can(user.role, 'projects:write')} initialProject={project} initialStage={stage} />;
 }

@@ -1,7 +1,9 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { StageEditor } from '@/components/stage-editor/stage-editor';
+import { ApiError } from '@/lib/api/errors';
 import { requirePageUser } from '@/lib/auth/session';
+import { getProject } from '@/lib/db/projects';
 import { listTubeOptions } from '@/lib/db/tubes';
 
 export const metadata: Metadata = { title: 'New stage' };
@@ -10,6 +12,9 @@ export default async function NewStagePage({ params }: { params: Promise<{ id: s
   await requirePageUser('projects:write');
   const { id } = await params;
   if (!/^[1-9]\d{0,9}$/.test(id)) notFound();
-  const tubes = await listTubeOptions();
-  return <StageEditor projectId={Number(id)} tubes={tubes} canEdit />;
+  const [project, tubes] = await Promise.all([getProject(Number(id)), listTubeOptions()]).catch((e: unknown) => {
+    if (e instanceof ApiError && e.code === 'not_found') notFound();
+    throw e;
+  });
+  return <StageEditor projectId={project.id} tubes={tubes} canEdit initialProject={project} />;
 }
