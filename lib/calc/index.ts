@@ -22,6 +22,21 @@ export { tubeSubcircuit, stageNetlist, SPICE_PRELUDE } from './spice';
 export type { NetlistOptions, SpiceAnalysis } from './spice';
 export * as formulas from './formulas';
 
+/** True when every number reachable from `value` is finite (no path strings built: this runs on every result). */
+function allFinite(value: unknown): boolean {
+  if (typeof value === 'number') return Number.isFinite(value);
+  if (Array.isArray(value)) {
+    for (let i = 0; i < value.length; i++) if (!allFinite(value[i])) return false;
+    return true;
+  }
+  if (value && typeof value === 'object') {
+    for (const k in value) {
+      if (Object.prototype.hasOwnProperty.call(value, k) && !allFinite((value as Record<string, unknown>)[k])) return false;
+    }
+  }
+  return true;
+}
+
 function assertFinite(value: unknown, path: string): void {
   if (typeof value === 'number') {
     if (!Number.isFinite(value)) throw new CalcError('no-solution', `The calculation produced a non-finite ${path}.`);
@@ -54,6 +69,7 @@ export function analyzeStage(input: StageInput): StageAnalysis {
     default:
       throw new CalcError('invalid-input', `Unknown topology '${(input as { topology: string }).topology}'.`);
   }
-  assertFinite(result, '');
+  // the path-building walk only runs to name the offending field
+  if (!allFinite(result)) assertFinite(result, '');
   return result;
 }

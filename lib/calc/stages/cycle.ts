@@ -32,59 +32,107 @@ export function solveLinear(a: number[][], b: number[]): number[] | null {
   return m.map((row, i) => (row[n] ?? 0) / (row[i] ?? 1));
 }
 
+/** Dense k×k solve for the (1–3 key) cycle-mean systems, on plain arrays; null if singular. */
+function newtonStep(jac: number[][], g: number[]): number[] | null {
+  return solveLinear(jac, g.map((v) => -v));
+}
+
+/** Broyden update J += (Δg − J·Δx)·Δxᵀ / (Δxᵀ·Δx). */
+function broyden(jac: number[][], dx: number[], dg: number[]): void {
+  const norm = dx.reduce((acc, v) => acc + v * v, 0);
+  if (!(norm > 0)) return;
+  jac.forEach((row, i) => {
+    const jdx = row.reduce((acc, v, j) => acc + v * (dx[j] ?? 0), 0);
+    const u = ((dg[i] ?? 0) - jdx) / norm;
+    row.forEach((_, j) => {
+      row[j] = (row[j] ?? 0) + u * (dx[j] ?? 0);
+    });
+  });
+}
+
+const COARSE = 32;
+
 /**
- * Finds the capacitor-held steady state: cycle means m such that averaging one solved cycle returns m.
- * Newton with a Jacobian from coarse cycles (32 samples: the mean of a smooth periodic waveform converges
- * fast in the sample count), then Broyden updates on full cycles.
+ * Finds the capacitor-held steady state: cycle means m such that averaging one solved cycle returns m
+ * (converged when every residual is within 1e-9 of its scale).
+ *
+ * Defect correction: the cycle-mean map of a coarse cycle (32 samples) differs from the full cycle's by an
+ * offset that hardly depends on m (the mean of a smooth periodic waveform converges fast in the sample count).
+ * So the iteration runs on coarse cycles (Newton with a finite-difference Jacobian, then Broyden), a full cycle
+ * measures the offset, and the coarse problem is re-solved with the offset added; typically two full cycles in
+ * all. If that stalls, Broyden continues on full cycles.
  */
 export function steadyState<M extends Record<string, number>, R>(
   keys: Array<keyof M>,
   start: M,
   runCycle: (m: M, samples?: number) => { means: M; result: R },
 ): { means: M; result: R } {
+  if (keys.length === 0) return runCycle({ ...start });
   let m = { ...start };
-  let run = runCycle(m);
-  if (keys.length === 0) return run;
   const resid = (r: { means: M }, at: M) => keys.map((k) => (r.means[k] as number) - (at[k] as number));
-  let g = resid(run, m);
   const scale = keys.map((k) => Math.max(Math.abs(start[k] as number), 1e-9));
-  const done = (v: number[]) => v.every((x, i) => Math.abs(x) <= 1e-9 * (scale[i] ?? 1));
-  if (done(g)) return run;
+  const within = (v: number[], tol: number) => v.every((x, i) => Math.abs(x) <= tol * (scale[i] ?? 1));
+  const done = (v: number[]) => within(v, 1e-9);
+  const coarseAt = (at: M) => resid(runCycle(at, COARSE), at);
+  const apply = (at: M, dx: number[]) => {
+    const next = { ...at };
+    keys.forEach((key, j) => {
+      (next[key] as number) = Math.max(0, (at[key] as number) + (dx[j] ?? 0));
+    });
+    return next;
+  };
+  const diff = (a: M, b: M) => keys.map((k) => (a[k] as number) - (b[k] as number));
+
+  // Jacobian of the coarse residual at the start (forward differences)
   const jac: number[][] = keys.map(() => keys.map(() => 0));
-  const coarse = resid(runCycle(m, 32), m);
+  let gc = coarseAt(m);
   keys.forEach((key, j) => {
     const step = 1e-4 * (scale[j] ?? 1);
     const mj = { ...m, [key]: (m[key] as number) + step };
-    const gj = resid(runCycle(mj, 32), mj);
+    const gj = coarseAt(mj);
     gj.forEach((v, i) => {
       const row = jac[i];
-      if (row) row[j] = (v - (coarse[i] ?? 0)) / step;
+      if (row) row[j] = (v - (gc[i] ?? 0)) / step;
     });
   });
-  for (let iter = 0; iter < 10; iter++) {
-    const dx = solveLinear(jac, g.map((v) => -v));
+
+  /** Solves coarse(m) + offset = 0 from the current m (Newton–Broyden, tight tolerance: coarse cycles are cheap). */
+  const solveCoarse = (offset: number[]) => {
+    for (let iter = 0; iter < 12; iter++) {
+      const target = gc.map((v, i) => v + (offset[i] ?? 0));
+      if (within(target, 1e-12)) return;
+      const dx = newtonStep(jac, target);
+      if (!dx) return;
+      const next = apply(m, dx);
+      const gNew = coarseAt(next);
+      broyden(jac, diff(next, m), gNew.map((v, i) => v - (gc[i] ?? 0)));
+      m = next;
+      gc = gNew;
+    }
+  };
+
+  const zero = keys.map(() => 0);
+  solveCoarse(zero);
+  let run = runCycle(m);
+  let g = resid(run, m);
+  for (let outer = 0; outer < 3 && !done(g); outer++) {
+    const offset = g.map((v, i) => v - (gc[i] ?? 0));
+    const before = { ...m };
+    solveCoarse(offset);
+    if (diff(m, before).every((v) => v === 0)) break;
+    run = runCycle(m);
+    g = resid(run, m);
+  }
+  // fallback: Broyden on full cycles
+  for (let iter = 0; iter < 10 && !done(g); iter++) {
+    const dx = newtonStep(jac, g);
     if (!dx) break;
-    const next = { ...m };
-    keys.forEach((key, j) => {
-      (next[key] as number) = Math.max(0, (m[key] as number) + (dx[j] ?? 0));
-    });
-    const step = keys.map((k) => (next[k] as number) - (m[k] as number));
+    const next = apply(m, dx);
+    const step = diff(next, m);
     m = next;
     run = runCycle(m);
     const gNew = resid(run, m);
-    if (done(gNew)) break;
-    // Broyden: J += (Δg − J·Δx)·Δxᵀ / (Δxᵀ·Δx)
-    const dg = gNew.map((v, i) => v - (g[i] ?? 0));
-    const norm = step.reduce((acc, v) => acc + v * v, 0);
-    if (norm > 0) {
-      jac.forEach((row, i) => {
-        const jdx = row.reduce((acc, v, j) => acc + v * (step[j] ?? 0), 0);
-        const u = ((dg[i] ?? 0) - jdx) / norm;
-        row.forEach((_, j) => {
-          row[j] = (row[j] ?? 0) + u * (step[j] ?? 0);
-        });
-      });
-    }
+    broyden(jac, step, gNew.map((v, i) => v - (g[i] ?? 0)));
     g = gNew;
   }
   return run;

@@ -194,7 +194,11 @@ function newtonNetwork(
     const iaM = pD(vak, vgk, vg2k, PD);
     let ig2M = 0;
     if (pent && sD) ig2M = sD(vgk, vg2k, SD);
-    ig = gD(vgk, GD);
+    if (vgk > 0) ig = gD(vgk, GD);
+    else {
+      ig = 0;
+      GD[1] = 0;
+    }
     const n0 = ia - iaM;
     const n1 = pent ? ig2 - ig2M : 0;
     const n2 = ik - ia - ig2 - ig;

@@ -159,8 +159,9 @@ function newtonPP(net: PPNet, vin: number, m: PPMeans, guess: PPSample): PPSampl
     const a2 = pD(vct + v - h * i2 - vk, vgk2, vg2k, P2);
     ig2a = pent && sD ? sD(vgk1, vg2k, S1) : 0;
     ig2b = pent && sD ? sD(vgk2, vg2k, S2) : 0;
-    ig1 = gD(vgk1, G1);
-    ig2 = gD(vgk2, G2);
+    // grid current is exactly 0 for Vgk ≤ 0: skip the call
+    ig1 = vgk1 > 0 ? gD(vgk1, G1) : ((G1[1] = 0), 0);
+    ig2 = vgk2 > 0 ? gD(vgk2, G2) : ((G2[1] = 0), 0);
     const n0 = i1 - a1;
     const n1 = i2 - a2;
     const n2 = useT ? t - ig2a - ig2b : 0;
@@ -342,23 +343,48 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   if (screen && screen.ac !== screen.dc) keys.push('ig2');
   const cycleAt = (amp: number, count = SAMPLES) => {
     const drive = sineDrive(amp, count);
+    const coarseDrive = new Map<number, number[]>();
+    // last solved cycle per sample count: warm start for the next (see single-tube.ts)
+    const lastCycle = new Map<number, PPSample[]>();
+    const guess: PPSample = { ...seed };
     return steadyState<PPMeans, PPSample[]>(keys, m0, (m, n) => {
       // Half-wave symmetry: the drive at k + N/2 is the negated drive at k, and the circuit is symmetric, so the
       // second half-cycle is the first with the tubes swapped; only N/2 samples are solved.
-      const wave = n ? sineDrive(amp, n) : drive;
+      let wave = drive;
+      if (n) {
+        wave = coarseDrive.get(n) ?? sineDrive(amp, n);
+        coarseDrive.set(n, wave);
+      }
       const count = wave.length;
       const half = count / 2;
+      const old = lastCycle.get(count);
       const samples: PPSample[] = new Array<PPSample>(count);
       let ik = 0;
       let ig2 = 0;
       for (let k = 0; k < half; k++) {
-        const guess = k === 0 ? seed : extrapolatePP(samples[k - 1] as PPSample, samples[k - 2], samples[k - 3]);
-        const sk = solvePP(net, wave[k] ?? 0, m, guess);
+        let start: PPSample;
+        if (old) {
+          const o = old[k] as PPSample;
+          if (k === 0) start = o;
+          else {
+            const a = samples[k - 1] as PPSample;
+            const b = old[k - 1] as PPSample;
+            guess.i1 = o.i1 + a.i1 - b.i1;
+            guess.i2 = o.i2 + a.i2 - b.i2;
+            guess.ig2a = o.ig2a + a.ig2a - b.ig2a;
+            guess.ig2b = o.ig2b + a.ig2b - b.ig2b;
+            guess.ig1 = o.ig1 + a.ig1 - b.ig1;
+            guess.ig2 = o.ig2 + a.ig2 - b.ig2;
+            start = guess;
+          }
+        } else start = k === 0 ? seed : extrapolatePP(samples[k - 1] as PPSample, samples[k - 2], samples[k - 3]);
+        const sk = solvePP(net, wave[k] ?? 0, m, start);
         samples[k] = sk;
         samples[k + half] = mirrorPP(sk);
         ik += totalPP(sk);
         ig2 += sk.ig2a + sk.ig2b;
       }
+      lastCycle.set(count, samples);
       return { means: { ik: ik / half, ig2: ig2 / half }, result: samples };
     });
   };

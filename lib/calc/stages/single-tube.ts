@@ -142,23 +142,45 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
   // large signal
   const amp = input.drive.amplitude;
   const drive = sineDrive(amp);
+  const coarseDrive = new Map<number, number[]>();
+  // Last solved cycle per sample count: the next cycle (slightly different means) starts each sample from it,
+  // shifted by how far the previous sample moved between the two cycles.
+  const lastCycle = new Map<number, SampleState[]>();
+  const guess: SampleState = { ...op };
   const runCycle = (m: Means, count?: number) => {
-    const wave = count ? sineDrive(amp, count) : drive;
-    const samples: SampleState[] = [];
+    let wave = drive;
+    if (count) {
+      wave = coarseDrive.get(count) ?? sineDrive(amp, count);
+      coarseDrive.set(count, wave);
+    }
+    const n = wave.length;
+    const old = lastCycle.get(n);
+    const samples: SampleState[] = new Array<SampleState>(n);
     let ia = 0;
     let ig2 = 0;
     let ik = 0;
-    for (let k = 0; k < wave.length; k++) {
+    for (let k = 0; k < n; k++) {
       const vin = wave[k] ?? 0;
-      const n = samples.length;
-      const guess = n === 0 ? op : extrapolate(samples[n - 1] as SampleState, samples[n - 2], samples[n - 3]);
-      const prev = solveNetwork(net, vin, m, 0, guess);
-      samples.push(prev);
+      let start: SampleState;
+      if (old) {
+        const o = old[k] as SampleState;
+        if (k === 0) start = o;
+        else {
+          const a = samples[k - 1] as SampleState;
+          const b = old[k - 1] as SampleState;
+          guess.ia = o.ia + a.ia - b.ia;
+          guess.ig2 = o.ig2 + a.ig2 - b.ig2;
+          guess.ik = o.ik + a.ik - b.ik;
+          start = guess;
+        }
+      } else start = k === 0 ? op : extrapolate(samples[k - 1] as SampleState, samples[k - 2], samples[k - 3]);
+      const prev = solveNetwork(net, vin, m, 0, start);
+      samples[k] = prev;
       ia += prev.ia;
       ig2 += prev.ig2;
       ik += prev.ik;
     }
-    const n = wave.length;
+    lastCycle.set(n, samples);
     return { means: { ia: ia / n, ig2: ig2 / n, ik: ik / n }, result: { samples, out: samples.map((s) => outputVoltage(net, s)) } as CycleResult };
   };
   const steady = amp > 0 ? steadyState<Means, CycleResult>(activeMeans(net), m0, runCycle) : runCycle(m0);
