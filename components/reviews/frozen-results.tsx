@@ -1,6 +1,6 @@
 import { StatusBadge } from '@/components/ui/badge';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
-import { stageResults } from '@/lib/review/diff';
+import { stageInputRows, stageResults } from '@/lib/review/diff';
 import type { RevisionSnapshot } from '@/lib/review/types';
 import { fmtValue } from './format';
 
@@ -8,7 +8,7 @@ import { fmtValue } from './format';
 export function FrozenResults({ snapshot }: { snapshot: RevisionSnapshot }) {
   return (
     <Card>
-      <CardHeader title="Frozen results" actions={<span className="text-xs text-muted">as calculated when submitted</span>} />
+      <CardHeader title="Frozen inputs and results" actions={<span className="text-xs text-muted">as designed and calculated when submitted</span>} />
       <CardBody className="grid gap-5 lg:grid-cols-2" data-testid="frozen-results">
         {snapshot.stages.map((s) => (
           <section key={s.id} className="space-y-2">
@@ -20,6 +20,19 @@ export function FrozenResults({ snapshot }: { snapshot: RevisionSnapshot }) {
                 Calculation error: {s.analysisError.message}
               </p>
             ) : null}
+            <details className="rounded-md border border-rule px-3 py-1.5 text-sm">
+              <summary className="cursor-pointer text-xs font-semibold uppercase tracking-wide text-muted">Inputs</summary>
+              <table className="mt-1 w-full">
+                <tbody className="divide-y divide-rule">
+                  {stageInputRows(s).map((r) => (
+                    <tr key={r.path}>
+                      <td className="py-1 pr-2 text-muted">{r.label}</td>
+                      <td className="num py-1 text-right">{fmtValue(r.value, r.unit)}</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </details>
             <table className="w-full text-sm">
               <tbody className="divide-y divide-rule">
                 {stageResults(s)

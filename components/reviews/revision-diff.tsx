@@ -73,6 +73,19 @@ function StageBlock({ s, base, number }: { s: StageDiff; base: string; number: n
 
 export function RevisionDiffView({ diff, number }: { diff: RevisionDiff; number: number }) {
   const base = diff.base ? `Approved rev. ${diff.base.number}` : 'Before';
+  if (!diff.base) {
+    return (
+      <Card>
+        <CardHeader title="What changed" />
+        <CardBody data-testid="revision-diff">
+          <p className="text-sm">
+            No revision of this project has been approved yet, so there is nothing to compare with: everything in revision {number} is new. Its {diff.stages.length} stage
+            {diff.stages.length === 1 ? '' : 's'} ({diff.stages.map((s) => s.name).join(', ')}) are shown below with their frozen inputs and results.
+          </p>
+        </CardBody>
+      </Card>
+    );
+  }
   return (
     <Card>
       <CardHeader

@@ -163,6 +163,17 @@ function stageFields(s: SnapshotStage | undefined) {
   return { name: s.name, position: s.position, topology: s.topology, tubeDesignation: s.tubeDesignation, tubeModelId: s.tubeModelId, supplyNode: s.supplyNode, inputs: s.inputs };
 }
 
+/** A stage's inputs as labelled rows (for the frozen view of a revision). */
+export function stageInputRows(s: SnapshotStage) {
+  const flat = flatten({ inputs: s.inputs });
+  return Object.entries(flat)
+    .filter(([k]) => k !== 'inputs.topology' && k !== 'inputs.tubeId')
+    .map(([path, value]) => {
+      const [label, unit] = labelFor(INPUT_LABELS, path);
+      return { path, label, unit, value };
+    });
+}
+
 export function stageResults(s: SnapshotStage | undefined | null) {
   return RESULT_FIELDS.map((f) => ({ ...f, value: s?.analysis ? (get(s.analysis, f.path) as number | null | undefined) ?? null : null }));
 }
