@@ -63,7 +63,7 @@ export function ChainView({ project }: { project: ProjectDetail }) {
               {c.stages.map((s, i) => (
                 <li key={s.stageId} className="flex items-stretch">
                   {i > 0 ? <span aria-hidden className="flex items-center px-1.5 text-lg text-muted">→</span> : null}
-                  <StageBlock s={s} first={c.firstClip?.stageId === s.stageId} />
+                  <StageBlock s={s} first={c.firstClip?.stageId === s.stageId} upstreamClipped={c.stages.slice(0, i).some((u) => u.clipping)} />
                 </li>
               ))}
             </ol>
@@ -94,7 +94,16 @@ function ChainSummary({ c }: { c: ChainResult }) {
       </div>
       <div className="rounded-md border border-rule bg-paper/50 px-3 py-2">
         <dt className="text-xs text-muted">Output at <Num v={c.inputRms} unit="V" /> rms in</dt>
-        <dd className="text-base"><Num v={c.outputRms} unit="V" /> rms{c.firstClip && c.firstClip.chainInputRms < c.inputRms ? <span className="ml-2 text-xs text-over">(clipped: linear estimate)</span> : null}</dd>
+        {c.firstClip && c.firstClip.chainInputRms < c.inputRms ? (
+          <dd>
+            <b className="text-over">clipped</b>
+            <span className="text-xs text-muted">
+              {' '}· largest clean output <Num v={c.totalGain !== null ? c.firstClip.chainInputRms * c.totalGain : null} unit="V" /> rms
+            </span>
+          </dd>
+        ) : (
+          <dd className="text-base"><Num v={c.outputRms} unit="V" /> rms</dd>
+        )}
       </div>
       <div className={cn('rounded-md border px-3 py-2', c.firstClip && c.firstClip.chainInputRms < c.inputRms ? 'border-over/50 bg-over/5' : 'border-rule bg-paper/50')}>
         <dt className="text-xs text-muted">Clips first</dt>
@@ -113,7 +122,7 @@ function ChainSummary({ c }: { c: ChainResult }) {
   );
 }
 
-function StageBlock({ s, first }: { s: ChainStageResult; first: boolean }) {
+function StageBlock({ s, first, upstreamClipped }: { s: ChainStageResult; first: boolean; upstreamClipped: boolean }) {
   const use = s.inputRms !== null && s.maxDrivePeak ? (s.inputRms * Math.SQRT2) / s.maxDrivePeak : null;
   return (
     <div className={cn('w-56 rounded-md border bg-sheet px-3 py-2 text-sm', s.clipping ? 'border-over' : first ? 'border-near' : 'border-rule')} data-testid="chain-stage">
@@ -131,9 +140,9 @@ function StageBlock({ s, first }: { s: ChainStageResult; first: boolean }) {
           <dt className="text-muted">Gain</dt>
           <dd className="num text-right">{s.gain !== null ? `× ${Math.abs(s.gain).toFixed(2)}${s.gain < 0 ? ' (inv.)' : ''}` : '–'}</dd>
           <dt className="text-muted">At its grid</dt>
-          <dd className="text-right"><Num v={s.inputRms} unit="V" /> rms</dd>
+          <dd className="whitespace-nowrap text-right">{upstreamClipped ? <span className="text-muted">clipped before</span> : <><Num v={s.inputRms} unit="V" /> rms</>}</dd>
           <dt className="text-muted">Output</dt>
-          <dd className="text-right"><Num v={s.outputRms} unit="V" /> rms</dd>
+          <dd className="whitespace-nowrap text-right">{upstreamClipped || s.clipping ? <span className="text-over">clipped</span> : <><Num v={s.outputRms} unit="V" /> rms</>}</dd>
           <dt className="text-muted">Headroom</dt>
           <dd className="text-right"><Num v={s.maxDrivePeak} unit="V" /> pk</dd>
           <dt className="text-muted">Clips from</dt>
@@ -147,7 +156,7 @@ function StageBlock({ s, first }: { s: ChainStageResult; first: boolean }) {
           <dd className="text-right"><Num v={s.supplyCurrent} unit="A" /> {s.supplyNode ? <span className="num text-muted">@{s.supplyNode}</span> : null}</dd>
         </dl>
       )}
-      {use !== null ? (
+      {use !== null && !upstreamClipped ? (
         <div className="mt-2" title="Signal at the grid as a share of the stage's headroom">
           <div className="h-1.5 overflow-hidden rounded bg-rule/60">
             <div className={cn('h-full', use >= 1 ? 'bg-over' : use >= 0.7 ? 'bg-near' : 'bg-ok')} style={{ width: `${Math.min(100, use * 100)}%` }} />
@@ -196,12 +205,12 @@ function SupplyResult({ c, project }: { c: ChainResult; project: ProjectDetail }
                   {sup.nodes.map((n) => (
                     <tr key={n.key}>
                       <td className="px-2.5 py-1.5"><span className="num font-semibold">{n.key}</span> <span className="text-xs text-muted">{n.name}</span></td>
-                      <td className="px-2.5 py-1.5 text-right"><Num v={n.droppingResistor} unit="Ω" /></td>
-                      <td className="px-2.5 py-1.5 text-right"><Num v={n.filterCapacitor} unit="F" /></td>
-                      <td className="px-2.5 py-1.5 text-right font-semibold"><Num v={n.voltage} unit="V" digits={4} /></td>
-                      <td className="px-2.5 py-1.5 text-right"><Num v={n.currentIn} unit="A" /></td>
-                      <td className="px-2.5 py-1.5 text-right"><Num v={n.stageCurrent} unit="A" /></td>
-                      <td className="px-2.5 py-1.5 text-right"><Num v={n.drop} unit="V" /> / <Num v={n.resistorPower} unit="W" /></td>
+                      <td className="whitespace-nowrap px-2.5 py-1.5 text-right"><Num v={n.droppingResistor} unit="Ω" /></td>
+                      <td className="whitespace-nowrap px-2.5 py-1.5 text-right"><Num v={n.filterCapacitor} unit="F" /></td>
+                      <td className="whitespace-nowrap px-2.5 py-1.5 text-right font-semibold"><Num v={n.voltage} unit="V" digits={4} /></td>
+                      <td className="whitespace-nowrap px-2.5 py-1.5 text-right"><Num v={n.currentIn} unit="A" /></td>
+                      <td className="whitespace-nowrap px-2.5 py-1.5 text-right"><Num v={n.stageCurrent} unit="A" /></td>
+                      <td className="whitespace-nowrap px-2.5 py-1.5 text-right"><Num v={n.drop} unit="V" /> / <Num v={n.resistorPower} unit="W" /></td>
                       <td className="px-2.5 py-1.5 text-xs">{n.stageIds.map((id) => names.get(id)).join(', ') || '–'}</td>
                     </tr>
                   ))}

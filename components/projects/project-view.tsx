@@ -99,6 +99,11 @@ export function ProjectView({ initialProject, canWrite }: { initialProject: Proj
         />
         <CardBody className="p-0">
           <StagesTable project={project} />
+          {project.stages.length ? (
+            <p className="border-t border-rule px-4 py-2 text-xs text-muted">
+              Results as saved, at each stage’s own assumed supply. The chain below re-analyses every stage at its solved node voltage.
+            </p>
+          ) : null}
         </CardBody>
       </Card>
 
