@@ -26,5 +26,3 @@ export const revisionListQuerySchema = z.object({
   state: z.enum(REVISION_STATES).optional(),
   projectId: z.coerce.number().int().positive().optional(),
 });
-
-export const withdrawQuerySchema = z.object({});
