@@ -146,10 +146,25 @@ export function mean(xs: ArrayLike<number>): number {
 
 /**
  * Smallest x in [0, hi] where a continuous g crosses from negative to ≥ 0 (g(0) < 0 expected);
- * 0 if g(0) ≥ 0 already, null if g stays negative up to hi.
+ * 0 if g(0) ≥ 0 already, null if g stays negative up to hi. With `start` (the scale where a crossing is
+ * expected) it first walks out from 0 by doubling, so every evaluation is near the last one (the solvers warm
+ * start from it) and no evaluation goes far beyond the crossing; Brent then refines inside the last doubling.
+ * The tolerance is 1e-7·hi either way.
  */
-export function firstCrossing(g: (x: number) => number, hi: number): number | null {
+export function firstCrossing(g: (x: number) => number, hi: number, start?: number): number | null {
   if (g(0) >= 0) return 0;
-  if (g(hi) < 0) return null;
-  return brent(g, 0, hi, 1e-7 * hi);
+  const tol = 1e-7 * hi;
+  if (start === undefined || !(start > 0)) {
+    if (g(hi) < 0) return null;
+    return brent(g, 0, hi, tol);
+  }
+  let lo = 0;
+  let a = Math.min(start, hi);
+  for (;;) {
+    if (g(a) >= 0) break;
+    if (a >= hi) return null;
+    lo = a;
+    a = Math.min(2 * a, hi);
+  }
+  return brent(g, lo, a, tol);
 }

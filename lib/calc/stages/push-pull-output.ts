@@ -221,7 +221,7 @@ function newtonPP(net: PPNet, vin: number, m: PPMeans, guess: PPSample): PPSampl
     i2 = Math.max(0, i2 + d2);
     t = useT ? Math.max(0, t + dt) : 0;
     ik = useK ? Math.max(0, ik + dk) : 0;
-    const tol = 1e-9;
+    const tol = 1e-7;
     if (
       Math.abs(i1 - p1) <= tol * i1 + 1e-20 &&
       Math.abs(i2 - p2) <= tol * i2 + 1e-20 &&
@@ -399,12 +399,13 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   const p3 = p5 ? threePoint(at(amp), 2 * seed.v, at(-amp)) : null;
 
   let last = seed;
+  const scale = Math.max(0.5 * Math.abs(opPoint.gridCathodeVoltage), 0.05);
   const solve = (a: number) => (last = solvePP(net, a, m0, last));
   const candidates: Array<[HeadroomLimit, number | null]> = [
-    ['grid-conduction', firstCrossing((a) => gridBias + a - solve(a).vk, input.supply)],
-    ['plate-saturation', firstCrossing((a) => { const s = solve(a); return 0.15 * vak0 - (plate1(s) - s.vk); }, input.supply)],
+    ['grid-conduction', firstCrossing((a) => gridBias + a - solve(a).vk, input.supply, scale)],
+    ['plate-saturation', firstCrossing((a) => { const s = solve(a); return 0.15 * vak0 - (plate1(s) - s.vk); }, input.supply, scale)],
   ];
-  if (input.class === 'A') candidates.push(['cutoff', firstCrossing((a) => 0.01 * op.ia - solve(a).i2, input.supply)]);
+  if (input.class === 'A') candidates.push(['cutoff', firstCrossing((a) => 0.01 * op.ia - solve(a).i2, input.supply, scale)]);
   let best: [HeadroomLimit, number] = ['none', input.supply];
   for (const [name, value] of candidates) if (value !== null && value < best[1]) best = [name, value];
   const swing = Math.abs(at(best[1]) - at(-best[1])) / 2;

@@ -276,10 +276,12 @@ function headroomOf(net: SingleTubeNetwork, m: Means, op: SampleState, supply: n
   const solve = (vin: number) => (last = solveNetwork(net, vin, m, 0, last));
   const limit = supply;
   const vak0 = op.vp - op.vk;
+  // searches walk out from about half the bias (the grid-conduction scale of a plate-loaded stage)
+  const scale = Math.max(0.5 * Math.abs(op.vg - op.vk), 0.05);
   const candidates: Array<[HeadroomLimit, number | null]> = [
-    ['grid-conduction', firstCrossing((a) => { const s = solve(a); return s.vg - s.vk; }, limit)],
-    ['cutoff', firstCrossing((a) => 0.01 * op.ia - solve(-a).ia, limit)],
-    ['plate-saturation', firstCrossing((a) => { const s = solve(a); return 0.15 * vak0 - (s.vp - s.vk); }, limit)],
+    ['grid-conduction', firstCrossing((a) => { const s = solve(a); return s.vg - s.vk; }, limit, scale)],
+    ['cutoff', firstCrossing((a) => 0.01 * op.ia - solve(-a).ia, limit, scale)],
+    ['plate-saturation', firstCrossing((a) => { const s = solve(a); return 0.15 * vak0 - (s.vp - s.vk); }, limit, scale)],
   ];
   let best: [HeadroomLimit, number] = ['none', limit];
   for (const [name, value] of candidates) if (value !== null && value < best[1]) best = [name, value];
