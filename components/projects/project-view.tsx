@@ -17,6 +17,7 @@ import { TOPOLOGY_LABELS } from '@/lib/report/labels';
 import { formatEng } from '@/lib/units';
 import { cn } from '@/lib/utils';
 import { renameProjectSchema, type RenameProjectInput } from '@/lib/validation/project';
+import { SubmitForReviewButton } from '@/components/reviews/submit-for-review-button';
 import { ChainView } from './chain-view';
 import { SupplyEditor } from './supply-editor';
 
@@ -81,6 +82,9 @@ export function ProjectView({ initialProject, canWrite }: { initialProject: Proj
           <a className={buttonVariants({ variant: 'secondary', size: 'sm' })} href={`/api/projects/${project.id}/report`} download>
             Design report (PDF)
           </a>
+          {canWrite && !project.archived ? (
+            <SubmitForReviewButton projectId={project.id} status={project.status} disabledReason={project.stages.length === 0 ? 'Add a stage before submitting for review.' : null} />
+          ) : null}
           {canWrite && !renaming && !project.archived ? <Button variant="secondary" size="sm" onClick={() => setRenaming(true)}>Rename</Button> : null}
           {canWrite ? (
             <Button variant={project.archived ? 'secondary' : 'danger'} size="sm" disabled={archive.isPending} onClick={() => archive.mutate(!project.archived)}>

@@ -35,7 +35,7 @@ export function SubmitForReviewButton({ projectId, status, disabledReason }: { p
   if (!open) {
     return (
       <div className="flex flex-col items-end gap-1">
-        <Button type="button" onClick={() => setOpen(true)} disabled={!!reason} data-testid="submit-for-review">
+        <Button type="button" size="sm" onClick={() => setOpen(true)} disabled={!!reason} data-testid="submit-for-review">
           Submit for review
         </Button>
         {reason ? <span className="text-xs text-muted">{reason}</span> : null}
