@@ -66,11 +66,14 @@ export function steadyState<M extends Record<string, number>, R>(
   keys: Array<keyof M>,
   start: M,
   runCycle: (m: M, samples?: number) => { means: M; result: R },
+  /** where the iteration starts, when a better guess than `start` (the idle means, which set the scale) is known */
+  from?: M,
 ): { means: M; result: R } {
   if (keys.length === 0) return runCycle({ ...start });
   let m = { ...start };
   const resid = (r: { means: M }, at: M) => keys.map((k) => (r.means[k] as number) - (at[k] as number));
   const scale = keys.map((k) => Math.max(Math.abs(start[k] as number), 1e-9));
+  if (from) m = { ...from };
   const within = (v: number[], tol: number) => v.every((x, i) => Math.abs(x) <= tol * (scale[i] ?? 1));
   const done = (v: number[]) => within(v, 1e-9);
   const coarseAt = (at: M) => resid(runCycle(at, COARSE), at);

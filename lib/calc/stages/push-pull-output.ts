@@ -11,7 +11,7 @@ import { solveNetwork } from './network';
 import { modelEvaluations } from '../models/registry';
 import { solveDenseInPlace } from './newton';
 import { screenParts } from './pentode-amplifier';
-import { checkIdle, operatingPointOf, stagePlot } from './single-tube';
+import { checkIdle, operatingPointOf, q3, q5, stagePlot } from './single-tube';
 
 /*
  * Ideal centre-tapped output transformer, plate-to-plate load Raa, each half-primary N turns.
@@ -341,7 +341,7 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   const keys: Array<keyof PPMeans> = [];
   if (bypassed) keys.push('ik');
   if (screen && screen.ac !== screen.dc) keys.push('ig2');
-  const cycleAt = (amp: number, count = SAMPLES) => {
+  const cycleAt = (amp: number, count = SAMPLES, from?: PPMeans) => {
     const drive = sineDrive(amp, count);
     const coarseDrive = new Map<number, number[]>();
     // last solved cycle per sample count: warm start for the next (see single-tube.ts)
@@ -367,16 +367,43 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
           const o = old[k] as PPSample;
           if (k === 0) start = o;
           else {
+            // previous cycle + the (extrapolated) change since it
             const a = samples[k - 1] as PPSample;
             const b = old[k - 1] as PPSample;
-            guess.i1 = o.i1 + a.i1 - b.i1;
-            guess.i2 = o.i2 + a.i2 - b.i2;
-            guess.ig2a = o.ig2a + a.ig2a - b.ig2a;
-            guess.ig2b = o.ig2b + a.ig2b - b.ig2b;
-            guess.ig1 = o.ig1 + a.ig1 - b.ig1;
-            guess.ig2 = o.ig2 + a.ig2 - b.ig2;
+            if (k >= 3) {
+              const a2 = samples[k - 2] as PPSample;
+              const b2 = old[k - 2] as PPSample;
+              const a3 = samples[k - 3] as PPSample;
+              const b3 = old[k - 3] as PPSample;
+              guess.i1 = o.i1 + q3(a.i1 - b.i1, a2.i1 - b2.i1, a3.i1 - b3.i1);
+              guess.i2 = o.i2 + q3(a.i2 - b.i2, a2.i2 - b2.i2, a3.i2 - b3.i2);
+              guess.ig2a = o.ig2a + q3(a.ig2a - b.ig2a, a2.ig2a - b2.ig2a, a3.ig2a - b3.ig2a);
+              guess.ig2b = o.ig2b + q3(a.ig2b - b.ig2b, a2.ig2b - b2.ig2b, a3.ig2b - b3.ig2b);
+              guess.ig1 = o.ig1 + q3(a.ig1 - b.ig1, a2.ig1 - b2.ig1, a3.ig1 - b3.ig1);
+              guess.ig2 = o.ig2 + q3(a.ig2 - b.ig2, a2.ig2 - b2.ig2, a3.ig2 - b3.ig2);
+            } else {
+              guess.i1 = o.i1 + a.i1 - b.i1;
+              guess.i2 = o.i2 + a.i2 - b.i2;
+              guess.ig2a = o.ig2a + a.ig2a - b.ig2a;
+              guess.ig2b = o.ig2b + a.ig2b - b.ig2b;
+              guess.ig1 = o.ig1 + a.ig1 - b.ig1;
+              guess.ig2 = o.ig2 + a.ig2 - b.ig2;
+            }
             start = guess;
           }
+        } else if (k >= 5) {
+          const a1 = samples[k - 1] as PPSample;
+          const a2 = samples[k - 2] as PPSample;
+          const a3 = samples[k - 3] as PPSample;
+          const a4 = samples[k - 4] as PPSample;
+          const a5 = samples[k - 5] as PPSample;
+          guess.i1 = Math.max(0, q5(a1.i1, a2.i1, a3.i1, a4.i1, a5.i1));
+          guess.i2 = Math.max(0, q5(a1.i2, a2.i2, a3.i2, a4.i2, a5.i2));
+          guess.ig2a = Math.max(0, q5(a1.ig2a, a2.ig2a, a3.ig2a, a4.ig2a, a5.ig2a));
+          guess.ig2b = Math.max(0, q5(a1.ig2b, a2.ig2b, a3.ig2b, a4.ig2b, a5.ig2b));
+          guess.ig1 = Math.max(0, q5(a1.ig1, a2.ig1, a3.ig1, a4.ig1, a5.ig1));
+          guess.ig2 = Math.max(0, q5(a1.ig2, a2.ig2, a3.ig2, a4.ig2, a5.ig2));
+          start = guess;
         } else start = k === 0 ? seed : extrapolatePP(samples[k - 1] as PPSample, samples[k - 2], samples[k - 3]);
         const sk = solvePP(net, wave[k] ?? 0, m, start);
         samples[k] = sk;
@@ -386,7 +413,7 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
       }
       lastCycle.set(count, samples);
       return { means: { ik: ik / half, ig2: ig2 / half }, result: samples };
-    });
+    }, from);
   };
   const amp = input.drive.amplitude;
   const steady = cycleAt(amp);
@@ -411,7 +438,8 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   const swing = Math.abs(at(best[1]) - at(-best[1])) / 2;
 
   // dissipation is an average: a 64-sample cycle is ample
-  const full = best[1] > 0 ? cycleAt(best[1], 64).result : samples;
+  // the means at the working drive are a closer start than the idle ones
+  const full = best[1] > 0 ? cycleAt(best[1], 64, steady.means).result : samples;
   const fullDissipation = mean(full.map((s) => (plate1(s) - s.vk) * s.i1));
   if (input.class === 'A' && amp > 0 && Math.min(...samples.map((s) => s.i2)) < 0.01 * op.ia) {
     warnings.push('Declared class A, but each tube cuts off for part of the cycle at this drive (class AB operation).');

@@ -100,6 +100,10 @@ function outputImpedance(net: SingleTubeNetwork, m: Means, guess: SampleState): 
 
 type CycleResult = { samples: SampleState[]; out: number[] };
 
+/** Quadratic and quartic extrapolation one step ahead from the last 3 / 5 values (newest first). */
+export const q3 = (a: number, b: number, c: number) => 3 * a - 3 * b + c;
+export const q5 = (a: number, b: number, c: number, d: number, e: number) => 5 * a - 10 * b + 10 * c - 5 * d + e;
+
 export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
   const { net, model, input } = spec;
   const warnings = [...spec.warnings];
@@ -166,13 +170,35 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
         const o = old[k] as SampleState;
         if (k === 0) start = o;
         else {
+          // previous cycle + the (extrapolated) change since it, which varies slowly along the cycle
           const a = samples[k - 1] as SampleState;
           const b = old[k - 1] as SampleState;
-          guess.ia = o.ia + a.ia - b.ia;
-          guess.ig2 = o.ig2 + a.ig2 - b.ig2;
-          guess.ik = o.ik + a.ik - b.ik;
+          if (k >= 3) {
+            const a2 = samples[k - 2] as SampleState;
+            const b2 = old[k - 2] as SampleState;
+            const a3 = samples[k - 3] as SampleState;
+            const b3 = old[k - 3] as SampleState;
+            guess.ia = o.ia + q3(a.ia - b.ia, a2.ia - b2.ia, a3.ia - b3.ia);
+            guess.ig2 = o.ig2 + q3(a.ig2 - b.ig2, a2.ig2 - b2.ig2, a3.ig2 - b3.ig2);
+            guess.ik = o.ik + q3(a.ik - b.ik, a2.ik - b2.ik, a3.ik - b3.ik);
+          } else {
+            guess.ia = o.ia + a.ia - b.ia;
+            guess.ig2 = o.ig2 + a.ig2 - b.ig2;
+            guess.ik = o.ik + a.ik - b.ik;
+          }
           start = guess;
         }
+      } else if (k >= 5) {
+        // quartic extrapolation along the (smooth) waveform
+        const a1 = samples[k - 1] as SampleState;
+        const a2 = samples[k - 2] as SampleState;
+        const a3 = samples[k - 3] as SampleState;
+        const a4 = samples[k - 4] as SampleState;
+        const a5 = samples[k - 5] as SampleState;
+        guess.ia = Math.max(0, q5(a1.ia, a2.ia, a3.ia, a4.ia, a5.ia));
+        guess.ig2 = Math.max(0, q5(a1.ig2, a2.ig2, a3.ig2, a4.ig2, a5.ig2));
+        guess.ik = Math.max(0, q5(a1.ik, a2.ik, a3.ik, a4.ik, a5.ik));
+        start = guess;
       } else start = k === 0 ? op : extrapolate(samples[k - 1] as SampleState, samples[k - 2], samples[k - 3]);
       const prev = solveNetwork(net, vin, m, 0, start);
       samples[k] = prev;
