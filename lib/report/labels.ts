@@ -51,7 +51,7 @@ export function inputRows(inputs: Record<string, unknown>): InputRow[] {
       const f = FIELDS[k] ?? { label: k, unit: '' };
       const group = prefix ? GROUP[prefix.split('.')[0]!] : undefined;
       const label = group && k === 'kind' ? `${group} kind` : f.label;
-      const value = v === null ? 'none' : typeof v === 'number' ? formatEng(v, f.unit, 4) : String(v);
+      const value = v === null ? 'none' : k === 'derating' && typeof v === 'number' ? `${Math.round(v * 100)} % of rating` : typeof v === 'number' ? formatEng(v, f.unit, 4) : String(v);
       rows.push({ path, label, value });
     }
   };

@@ -41,7 +41,7 @@ const STATUS_COLOUR: Record<string, string> = { ok: '#2f7d3b', near: '#b7791f', 
 
 const s = StyleSheet.create({
   page: { padding: 36, fontSize: 9, color: INK, lineHeight: 1.35 },
-  h1: { fontSize: 17, fontWeight: 'bold', marginBottom: 2 },
+  h1: { fontSize: 17, fontWeight: 'bold', lineHeight: 1.25, marginBottom: 4 },
   h2: { fontSize: 12, fontWeight: 'bold', marginTop: 12, marginBottom: 4, paddingBottom: 2, borderBottomWidth: 0.7, borderBottomColor: RULE },
   h3: { fontSize: 10, fontWeight: 'bold', marginTop: 6, marginBottom: 3 },
   muted: { color: MUTED },
@@ -321,7 +321,7 @@ export function ProjectReport({ project, opts = {} }: { project: ProjectDetail; 
         <Text style={s.h2}>Stages</Text>
         <Table
           head={['#', 'Stage', 'Topology', 'Tube', 'Ia', 'Va–k', 'Gain', 'Worst rating']}
-          widths={[0.3, 1.8, 1.3, 0.8, 0.8, 0.8, 0.7, 0.9]}
+          widths={[0.3, 1.7, 1.7, 0.8, 0.8, 0.8, 0.7, 1]}
           rows={project.stages.map((st) => {
             const a = st.analysis;
             const worst = a ? (['over', 'near', 'ok', 'not-checked'] as const).find((k) => a.ratings.some((r) => r.status === k)) ?? 'not-checked' : null;
