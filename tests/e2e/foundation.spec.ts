@@ -27,7 +27,7 @@ test('a wrong password is refused on the form with a message', async ({ page }) 
   await page.getByLabel('E-mail').fill('reviewer@anodyne.test');
   await page.getByLabel('Password').fill('wrong password');
   await page.getByRole('button', { name: 'Sign in' }).click();
-  await expect(page.getByRole('alert')).toContainText(/do not match/);
+  await expect(page.locator('form').getByRole('alert')).toContainText(/do not match/);
   await page.screenshot(shot('sign-in-refused'));
 });
 
