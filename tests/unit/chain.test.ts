@@ -124,6 +124,17 @@ describe('chain with real stages iterated to agreement', () => {
     expect(r.stages[0]!.inputRms).toBe(0.05);
   });
 
+  it('leaves a stage that cannot be analysed out of the supply solution and says so', () => {
+    const broken: ChainStage = { id: 9, name: 'Broken', position: 4, supplyNode: 'B+2', input: null, inputError: { code: 'invalid-input', message: 'no model' }, topology: 'common-cathode', assumedSupply: 250 };
+    const r = solveChain([...stages, broken], SUPPLY, { inputRms: 0.01 });
+    expect(r.supply?.converged).toBe(true);
+    expect(r.stages.at(-1)).toMatchObject({ stageId: 9, error: { message: 'no model' }, solvedSupply: null, supplyCurrent: null });
+    expect(r.supply!.nodes[1]!.stageIds).toEqual([2]);
+    expect(r.warnings.some((w) => w.includes('Broken'))).toBe(true);
+    // the chain beyond a broken stage has no level
+    expect(r.totalGain).toBeNull();
+  });
+
   it('reports a supply that cannot deliver the current instead of a number', () => {
     const starving = { ...SUPPLY, nodes: SUPPLY.nodes.map((n, i) => (i === 0 ? { ...n, droppingResistor: 20000 } : n)) };
     const r = solveChain(stages, starving, { inputRms: 0.1 });
