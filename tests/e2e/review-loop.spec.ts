@@ -1,7 +1,7 @@
 // The whole review loop: a technician records a failing bench check, the designer changes the stage and submits,
 // the reviewer approves, and the summary with its PDF arrives in the SMTP sink.
-// The designer's edit and submission go through the API from the page (page.request), so this spec does not depend
-// on the stage editor's or the project page's markup; the bench and review screens are driven through the UI.
+// The designer's stage edit goes through the stage API from the page (page.request), so this spec does not depend on
+// the stage editor's markup; the bench, project (Submit for review) and review screens are driven through the UI.
 import { expect, test, type APIRequestContext } from '@playwright/test';
 import { signIn, signOut } from './support';
 
@@ -49,8 +49,12 @@ test('bench check → change → submit → approve → summary mail with PDF', 
   await signIn(page, 'designer');
   const edited = await page.request.patch(`/api/stages/${stage.id}`, { data: { version: stage.version, inputs: { bias: { kind: 'cathode', cathodeResistor: 2200, cathodeBypass: 0.000022 } } } });
   await json(edited);
-  const { revision } = await json<{ revision: { id: number; number: number } }>(await page.request.post(`/api/projects/${project.id}/revisions`, { data: { note: 'Cathode resistor raised after the bench check.' } }));
-  await page.goto(`/reviews/${revision.id}`);
+  await page.goto(`/projects/${project.id}`);
+  await page.getByTestId('submit-for-review').click();
+  await page.getByLabel('Note to the reviewers (optional)').fill('Cathode resistor raised after the bench check.');
+  await page.getByRole('button', { name: 'Submit revision' }).click();
+  await expect(page).toHaveURL(/\/reviews\/\d+$/);
+  const revision = { id: Number(page.url().split('/').pop()), number: 1 };
   await expect(page.getByTestId('decision-blocked')).toContainText('Only reviewers');
   await expect(page.getByRole('button', { name: 'Approve' })).toBeDisabled();
   await signOut(page);
