@@ -2,7 +2,7 @@
 
 // Plate curve family Ia(Va) with load lines, Pa(max) and the operating point. It only draws what it is given.
 import { CartesianGrid, ComposedChart, Line, ReferenceDot, ResponsiveContainer, Scatter, XAxis, YAxis } from 'recharts';
-import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceCeil, niceTicks, tickNumber, type LegendEntry } from './chart-parts';
+import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceTicks, tickNumber, type LegendEntry } from './chart-parts';
 
 /** Currents in A, voltages in V (the chart shows mA). */
 export type VaIa = { va: number; ia: number };
@@ -42,10 +42,10 @@ export function curveSeriesFromPlot(curves: { gridVoltage: number; bias: boolean
 
 export function plateAxisRange(p: Pick<PlateCurvesChartProps, 'curves' | 'dcLoadLine' | 'acLoadLine' | 'operatingPoint' | 'measured' | 'vaMax' | 'iaMax'>) {
   const vaData = Math.max(maxOf(p.dcLoadLine, 'va'), ...p.curves.map((c) => maxOf(c.points, 'va')), maxOf(p.measured, 'va'));
-  const vaMax = p.vaMax ?? niceCeil(vaData || 100);
+  const vaMax = p.vaMax ?? (vaData > 0 ? vaData : 100);
   let ia = Math.max(maxOf(p.dcLoadLine, 'ia'), maxOf(p.acLoadLine, 'ia'), 2 * (p.operatingPoint?.ia ?? 0), maxOf(p.measured, 'ia'));
   if (!(ia > 0)) ia = Math.max(...p.curves.map((c) => maxOf(c.points, 'ia')), 1e-3);
-  const iaMax = p.iaMax ?? niceCeil(ia * 1.08);
+  const iaMax = p.iaMax ?? ia * 1.05;
   return { vaMax, iaMax };
 }
 
@@ -75,7 +75,7 @@ function curveLabels(curves: PlateCurveSeries[], vaMax: number, iaMaxMa: number)
   }
   const kept: CurveLabel[] = [];
   const near = (a: CurveLabel, b: CurveLabel) =>
-    a.top && b.top ? Math.abs(a.va - b.va) < vaMax * 0.07 : !a.top && !b.top ? Math.abs(a.ia - b.ia) < iaMaxMa * 0.05 : false;
+    a.top && b.top ? Math.abs(a.va - b.va) < vaMax * 0.1 : !a.top && !b.top ? Math.abs(a.ia - b.ia) < iaMaxMa * 0.05 : false;
   for (const l of [...all].sort((a, b) => Number(b.emphasis) - Number(a.emphasis))) {
     if (!kept.some((k) => near(k, l))) kept.push(l);
   }
@@ -87,7 +87,7 @@ export function PlateCurvesChart(props: PlateCurvesChartProps) {
   if (curves.length === 0 && !dcLoadLine?.length) return <EmptyChart height={height}>No curves to draw yet.</EmptyChart>;
   const ordered = [...curves].sort((a, b) => Number(!!a.emphasis) - Number(!!b.emphasis));
   const range = plateAxisRange(props);
-  const xTicks = niceTicks(0, range.vaMax, 6);
+  const xTicks = niceTicks(0, range.vaMax * 0.999, 6);
   const yTicks = niceTicks(0, range.iaMax * 1e3, 5);
   const vaMax = xTicks[xTicks.length - 1] ?? range.vaMax;
   const iaMaxMa = yTicks[yTicks.length - 1] ?? range.iaMax * 1e3;

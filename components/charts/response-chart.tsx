@@ -23,12 +23,43 @@ function magnitudeDomain(values: number[]): [number, number] {
   return [bottom, top];
 }
 
+/** Removes ±360° jumps so the phase reads as one continuous curve (display only). */
+export function unwrapPhase(deg: number[]): number[] {
+  const out: number[] = [];
+  let offset = 0;
+  deg.forEach((d, i) => {
+    if (i > 0) {
+      const prev = (deg[i - 1] ?? d) + offset;
+      while (d + offset - prev > 180) offset -= 360;
+      while (d + offset - prev < -180) offset += 360;
+    }
+    out.push(d + offset);
+  });
+  return out;
+}
+
+function phaseAxis(values: number[]): { domain: [number, number]; ticks: number[] } {
+  let lo = Math.floor(Math.min(...values) / 90) * 90;
+  let hi = Math.ceil(Math.max(...values) / 90) * 90;
+  if (hi - lo < 180) {
+    const mid = (hi + lo) / 2;
+    lo = Math.floor((mid - 90) / 90) * 90;
+    hi = lo + 180;
+  }
+  const ticks: number[] = [];
+  for (let t = lo; t <= hi; t += 90) ticks.push(t);
+  return { domain: [lo, hi], ticks };
+}
+
 export function ResponseChart({ points, lowCutoff, highCutoff, height = 280, stale = false }: ResponseChartProps) {
-  const data = points.filter((p) => p.frequency > 0);
+  const positive = points.filter((p) => p.frequency > 0);
+  const phase = unwrapPhase(positive.map((p) => p.phaseDeg));
+  const data = positive.map((p, i) => ({ ...p, phaseDeg: phase[i] ?? p.phaseDeg }));
   if (data.length === 0) return <EmptyChart height={height}>No frequency response to draw.</EmptyChart>;
   const fMin = Math.min(10, data[0]?.frequency ?? 10);
   const fMax = Math.max(100000, data[data.length - 1]?.frequency ?? 100000);
   const [magLo, magHi] = magnitudeDomain(data.map((d) => d.magnitudeDb));
+  const phaseScale = phaseAxis(phase);
   const inRange = (f: number | null | undefined): f is number => typeof f === 'number' && f >= fMin && f <= fMax;
   return (
     <figure data-testid="response-chart" data-stale={stale ? 'true' : 'false'} aria-label="Frequency response, magnitude and phase">
@@ -64,13 +95,13 @@ export function ResponseChart({ points, lowCutoff, highCutoff, height = 280, sta
               yAxisId="phase"
               orientation="right"
               type="number"
-              domain={[-270, 90]}
-              ticks={[-270, -180, -90, 0, 90]}
+              domain={phaseScale.domain}
+              ticks={phaseScale.ticks}
               allowDataOverflow
               tick={TICK}
               axisLine={AXIS_LINE}
               tickLine={AXIS_LINE}
-              width={48}
+              width={62}
               label={{ value: 'Phase (°)', angle: 90, position: 'insideRight', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
             />
             {inRange(lowCutoff) ? <ReferenceLine yAxisId="mag" x={lowCutoff} stroke={COLORS.muted} strokeDasharray="3 3" label={{ value: '−3 dB', position: 'insideTopRight', fill: COLORS.muted, fontSize: 10 }} /> : null}

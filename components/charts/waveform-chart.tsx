@@ -3,7 +3,7 @@
 // Input (grid drive) and output voltage over one period at the chosen drive. Separate axes: the output is
 // usually tens of times larger than the input.
 import { CartesianGrid, ComposedChart, Line, ReferenceLine, ResponsiveContainer, XAxis, YAxis } from 'recharts';
-import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, tickNumber } from './chart-parts';
+import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceStep, niceTicks, tickNumber } from './chart-parts';
 
 export type WaveformChartProps = {
   /** seconds */
@@ -16,17 +16,23 @@ export type WaveformChartProps = {
   stale?: boolean;
 };
 
-function symmetric(values: number[]): number {
-  const m = values.reduce((a, v) => Math.max(a, Math.abs(v)), 0);
-  return m > 0 ? Number((m * 1.1).toPrecision(2)) : 1;
+// Symmetric axis about zero with round ticks: ±55 V peak → −60 … 60 in steps of 20.
+function symmetricAxis(values: number[]): { max: number; ticks: number[] } {
+  const m = values.reduce((a, v) => Math.max(a, Math.abs(v)), 0) || 1;
+  const step = niceStep(2 * m, 4);
+  const max = Math.ceil(m / step - 1e-9) * step;
+  const ticks: number[] = [];
+  for (let v = -max; v <= max + step * 1e-6; v += step) ticks.push(Number(v.toPrecision(10)));
+  return { max, ticks };
 }
 
 export function WaveformChart({ t, input, output, height = 280, stale = false }: WaveformChartProps) {
   if (t.length === 0) return <EmptyChart height={height}>No waveform: set a drive amplitude.</EmptyChart>;
   const data = t.map((ti, i) => ({ ms: ti * 1e3, input: input[i] ?? 0, output: output[i] ?? 0 }));
-  const inMax = symmetric(input);
-  const outMax = symmetric(output);
+  const inAxis = symmetricAxis(input);
+  const outAxis = symmetricAxis(output);
   const msEnd = data[data.length - 1]?.ms ?? 1;
+  const tTicks = niceTicks(0, msEnd, 5).filter((v) => v <= msEnd + 1e-12);
   return (
     <figure data-testid="waveform-chart" data-stale={stale ? 'true' : 'false'} aria-label="Input and output waveforms">
       <div style={{ height }} className={stale ? 'opacity-60' : undefined}>
@@ -37,6 +43,7 @@ export function WaveformChart({ t, input, output, height = 280, stale = false }:
               type="number"
               dataKey="ms"
               domain={[0, msEnd]}
+              ticks={tTicks}
               tick={TICK}
               axisLine={AXIS_LINE}
               tickLine={AXIS_LINE}
@@ -46,7 +53,8 @@ export function WaveformChart({ t, input, output, height = 280, stale = false }:
             <YAxis
               yAxisId="in"
               type="number"
-              domain={[-inMax, inMax]}
+              domain={[-inAxis.max, inAxis.max]}
+              ticks={inAxis.ticks}
               tick={{ ...TICK, fill: COLORS.dcline }}
               axisLine={AXIS_LINE}
               tickLine={AXIS_LINE}
@@ -58,12 +66,13 @@ export function WaveformChart({ t, input, output, height = 280, stale = false }:
               yAxisId="out"
               orientation="right"
               type="number"
-              domain={[-outMax, outMax]}
+              domain={[-outAxis.max, outAxis.max]}
+              ticks={outAxis.ticks}
               tick={{ ...TICK, fill: COLORS.acline }}
               axisLine={AXIS_LINE}
               tickLine={AXIS_LINE}
               tickFormatter={tickNumber}
-              width={52}
+              width={62}
               label={{ value: 'Output (V)', angle: 90, position: 'insideRight', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
             />
             <ReferenceLine yAxisId="in" y={0} stroke={COLORS.rule} />

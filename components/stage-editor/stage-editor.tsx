@@ -281,7 +281,7 @@ function StageEditorForm({ project, stage, tubes, canEdit }: { project: ProjectD
 
       <Caution className="mb-4" compact />
 
-      <div className="grid grid-cols-1 gap-4 lg:grid-cols-[340px_minmax(0,1fr)] 2xl:grid-cols-[340px_minmax(0,1fr)_340px]">
+      <div className="grid grid-cols-1 gap-4 lg:grid-cols-[320px_minmax(0,1fr)] xl:grid-cols-[300px_minmax(0,1fr)_300px] 2xl:grid-cols-[340px_minmax(0,1fr)_340px]">
         <Card className="self-start">
           <CardHeader title="Inputs" />
           <StageInputs form={form} errors={errors} tubes={tubes} supplyNodes={project.supply.nodes ?? []} isNew={isNew} readOnly={readOnly} onTopologyChange={onTopologyChange} />
@@ -306,7 +306,7 @@ function StageEditorForm({ project, stage, tubes, canEdit }: { project: ProjectD
           </div>
         </Card>
 
-        <div className="space-y-4 lg:col-span-2 lg:grid lg:grid-cols-2 lg:gap-4 lg:space-y-0 2xl:col-span-1 2xl:block 2xl:space-y-4">
+        <div className="space-y-4 lg:col-span-2 lg:grid lg:grid-cols-2 lg:gap-4 lg:space-y-0 xl:col-span-1 xl:block xl:space-y-4">
           <Card className="self-start">
             <CardHeader title="Results" />
             {analysis ? <ResultsPanel analysis={analysis} stale={live.stale} /> : <p className="p-4 text-sm text-muted">No result yet.</p>}
@@ -333,10 +333,10 @@ export function StageEditorSkeleton() {
       <div className="h-4 w-40 animate-pulse rounded bg-rule/50" />
       <div className="h-7 w-72 animate-pulse rounded bg-rule/60" />
       <div className="h-10 animate-pulse rounded bg-rule/30" />
-      <div className="grid grid-cols-1 gap-4 lg:grid-cols-[340px_minmax(0,1fr)] 2xl:grid-cols-[340px_minmax(0,1fr)_340px]">
+      <div className="grid grid-cols-1 gap-4 lg:grid-cols-[320px_minmax(0,1fr)] xl:grid-cols-[300px_minmax(0,1fr)_300px] 2xl:grid-cols-[340px_minmax(0,1fr)_340px]">
         <div className="h-[640px] animate-pulse rounded-lg bg-rule/30" />
         <div className="h-[640px] animate-pulse rounded-lg bg-rule/30" />
-        <div className="hidden h-[640px] animate-pulse rounded-lg bg-rule/30 2xl:block" />
+        <div className="hidden h-[640px] animate-pulse rounded-lg bg-rule/30 xl:block" />
       </div>
     </div>
   );

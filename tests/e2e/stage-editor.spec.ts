@@ -76,12 +76,17 @@ test('a designer builds a common-cathode stage, watches it follow the cathode re
   await field(page, 'Cathode resistor').fill('2k7');
   await settled(page);
   await expect(chart).toHaveAttribute('data-stale', 'false');
+  // three columns on a wide display; scrolled to the top so the sticky header sits where it belongs
+  await page.setViewportSize({ width: 1600, height: 1000 });
+  await page.evaluate(() => window.scrollTo(0, 0));
   await page.screenshot(shot('stage-editor-light'));
 
   await page.getByRole('button', { name: 'Switch to dark theme' }).click();
   await expect(page.locator('html')).toHaveClass(/dark/);
+  await page.evaluate(() => window.scrollTo(0, 0));
   await page.screenshot(shot('stage-editor-dark'));
   await page.getByRole('button', { name: 'Switch to light theme' }).click();
+  await page.setViewportSize({ width: 1280, height: 720 });
 
   await page.getByRole('button', { name: 'Save stage' }).click();
   await expect(page).toHaveURL(new RegExp(`/projects/${projectId}/stages/\\d+$`));
