@@ -30,9 +30,8 @@ function allFinite(value: unknown): boolean {
     return true;
   }
   if (value && typeof value === 'object') {
-    for (const k in value) {
-      if (Object.prototype.hasOwnProperty.call(value, k) && !allFinite((value as Record<string, unknown>)[k])) return false;
-    }
+    const keys = Object.keys(value);
+    for (let i = 0; i < keys.length; i++) if (!allFinite((value as Record<string, unknown>)[keys[i] as string])) return false;
   }
   return true;
 }

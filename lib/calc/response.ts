@@ -36,27 +36,85 @@ export function parallelRC(r: number, c: number, w: number): Cx {
   return cdiv(cx(r), cx(1, w * r * c));
 }
 
-/** A factor of the stage response: value at angular frequency w, normalised to 1 in the midband. */
-export type ResponseFactor = { band: 'low' | 'high'; at: (w: number) => Cx };
+/**
+ * A factor of the stage response, normalised to 1 in the midband. `mul(w, h)` multiplies the complex number
+ * (h[0] + j·h[1]) by the factor's value at angular frequency w in place (closed form, no allocation: the curve
+ * and the cut-off searches call it thousands of times); `at(w)` returns the value.
+ */
+export type ResponseFactor = { band: 'low' | 'high'; at: (w: number) => Cx; mul: (w: number, h: Float64Array) => void };
 
-export function firstOrderLowPass(tau: number): ResponseFactor {
-  return { band: 'high', at: (w) => cdiv(cx(1), cx(1, w * tau)) };
+function withAt(band: 'low' | 'high', mul: (w: number, h: Float64Array) => void): ResponseFactor {
+  const tmp = new Float64Array(2);
+  return {
+    band,
+    mul,
+    at: (w) => {
+      tmp[0] = 1;
+      tmp[1] = 0;
+      mul(w, tmp);
+      return cx(tmp[0] as number, tmp[1] as number);
+    },
+  };
 }
 
+/** 1/(1 + jwτ) = (1 − jx)/(1 + x²), x = wτ. */
+export function firstOrderLowPass(tau: number): ResponseFactor {
+  return withAt('high', (w, h) => {
+    const x = w * tau;
+    const d = 1 + x * x;
+    const re = h[0] as number;
+    const im = h[1] as number;
+    h[0] = (re + im * x) / d;
+    h[1] = (im - re * x) / d;
+  });
+}
+
+/** jwτ/(1 + jwτ) = (x² + jx)/(1 + x²). */
 export function firstOrderHighPass(tau: number): ResponseFactor {
-  return { band: 'low', at: (w) => cdiv(cx(0, w * tau), cx(1, w * tau)) };
+  return withAt('low', (w, h) => {
+    const x = w * tau;
+    const d = 1 + x * x;
+    const re = h[0] as number;
+    const im = h[1] as number;
+    h[0] = (re * x * x - im * x) / d;
+    h[1] = (im * x * x + re * x) / d;
+  });
 }
 
 /** A bypassed node: gain goes from A(R) at DC to A(0) in the midband; normalised by A(0). */
 export function bypassFactor(fit: Bilinear, r: number, c: number): ResponseFactor {
   const mid = fit.a;
-  return { band: 'low', at: (w) => cdiv(evalBilinear(fit, parallelRC(r, c, w)), cx(mid)) };
+  return withAt('low', (w, h) => {
+    // Z = r/(1 + jwrc); A(Z) = (a + bZ)/(1 + dZ) = (a(1 + jy) + b·r)/((1 + jy) + d·r), y = wrc
+    const y = w * r * c;
+    const nr = fit.a + fit.b * r;
+    const ni = fit.a * y;
+    const dr = 1 + fit.d * r;
+    const di = y;
+    const dd = (dr * dr + di * di) * mid;
+    const fr = (nr * dr + ni * di) / dd;
+    const fi = (ni * dr - nr * di) / dd;
+    const re = h[0] as number;
+    const im = h[1] as number;
+    h[0] = re * fr - im * fi;
+    h[1] = re * fi + im * fr;
+  });
+}
+
+const H = new Float64Array(2);
+
+function productInto(factors: ResponseFactor[], w: number, band: 'low' | 'high' | undefined, h: Float64Array): void {
+  h[0] = 1;
+  h[1] = 0;
+  for (let i = 0; i < factors.length; i++) {
+    const f = factors[i] as ResponseFactor;
+    if (!band || f.band === band) f.mul(w, h);
+  }
 }
 
 export function productAt(factors: ResponseFactor[], w: number, band?: 'low' | 'high'): Cx {
-  let h = cx(1);
-  for (const f of factors) if (!band || f.band === band) h = cmul(h, f.at(w));
-  return h;
+  productInto(factors, w, band, H);
+  return cx(H[0] as number, H[1] as number);
 }
 
 /** −3 dB frequency of the low or high factors alone, by bisection on log f; null when there are none. */
@@ -64,7 +122,10 @@ export function cutoff(factors: ResponseFactor[], band: 'low' | 'high'): number 
   const own = factors.filter((f) => f.band === band);
   if (own.length === 0) return null;
   const target = Math.SQRT1_2;
-  const mag = (logf: number) => cabs(productAt(own, 2 * Math.PI * 10 ** logf));
+  const mag = (logf: number) => {
+    productInto(own, 2 * Math.PI * 10 ** logf, undefined, H);
+    return Math.hypot(H[0] as number, H[1] as number);
+  };
   let lo = -6;
   let hi = 12;
   const below = (logf: number) => (band === 'low' ? mag(logf) < target : mag(logf) > target);
@@ -84,12 +145,14 @@ export function responseCurve(gain: number, factors: ResponseFactor[], points = 
   const step = Math.log10(fmax / fmin) / (points - 1);
   for (let k = 0; k < points; k++) {
     const f = fmin * 10 ** (k * step);
-    const h = cmul(cx(gain), productAt(factors, 2 * Math.PI * f));
-    const mag = cabs(h);
+    productInto(factors, 2 * Math.PI * f, undefined, H);
+    const re = gain * (H[0] as number);
+    const im = gain * (H[1] as number);
+    const mag = Math.hypot(re, im);
     out.push({
       frequency: f,
       magnitudeDb: mag > 0 ? 20 * Math.log10(mag) : -300,
-      phaseDeg: (Math.atan2(h.im, h.re) * 180) / Math.PI,
+      phaseDeg: (Math.atan2(im, re) * 180) / Math.PI,
     });
   }
   return out;

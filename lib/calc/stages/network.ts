@@ -1,6 +1,5 @@
 import { modelEvaluations, type TubeModel } from '../models/registry';
 import { expandUpper, solveIncreasing } from '../solve';
-import { solveDenseInPlace } from './newton';
 
 /**
  * One tube in a linear network. DC paths use the *Dc resistances; signal deviations from the cycle means see
@@ -99,7 +98,6 @@ function gridVoltage(c: Ctx, ik: number): number {
 const PD = new Float64Array(4);
 const SD = new Float64Array(3);
 const GD = new Float64Array(2);
-const JAC = new Float64Array(9);
 const RHS = new Float64Array(3);
 
 /** Relative Newton step below which the iterate is taken as converged (the next error is ~ its square). */
@@ -220,19 +218,24 @@ function newtonNetwork(
     const pa = PD[1] as number;
     const pg = PD[2] as number;
     const ps = PD[3] as number;
-    JAC[0] = 1 + pa * rp;
-    JAC[1] = pent ? ps * rs : 0;
-    JAC[2] = pa * rk - pg * q + ps * rk;
-    JAC[3] = 0;
-    JAC[4] = pent ? 1 + (SD[2] as number) * rs : 1;
-    JAC[5] = pent ? -(SD[1] as number) * q + (SD[2] as number) * rk : 0;
-    JAC[6] = -1;
-    JAC[7] = -1;
-    JAC[8] = 1 - (GD[1] as number) * q;
-    RHS[0] = -f0;
-    RHS[1] = -f1;
-    RHS[2] = -f2;
-    if (!solveDenseInPlace(3, JAC, RHS)) return null;
+    // J = [[A0 A1 A2] [0 B1 B2] [-1 -1 C2]]; A0, B1 ≥ 1, so elimination needs no pivoting
+    const a0 = 1 + pa * rp;
+    const a1 = pent ? ps * rs : 0;
+    const a2 = pa * rk - pg * q + ps * rk;
+    const b1 = pent ? 1 + (SD[2] as number) * rs : 1;
+    const b2 = pent ? -(SD[1] as number) * q + (SD[2] as number) * rk : 0;
+    const c2 = 1 - (GD[1] as number) * q;
+    const e1 = -1 + a1 / a0;
+    const e2 = c2 + a2 / a0;
+    const e = -f2 - f0 / a0;
+    const fr = e1 / b1;
+    const x2 = (e + fr * f1) / (e2 - fr * b2);
+    const x1 = (-f1 - b2 * x2) / b1;
+    const x0 = (-f0 - a1 * x1 - a2 * x2) / a0;
+    if (!Number.isFinite(x0) || !Number.isFinite(x1) || !Number.isFinite(x2)) return null;
+    RHS[0] = x0;
+    RHS[1] = x1;
+    RHS[2] = x2;
     dia = RHS[0] as number;
     dig2 = RHS[1] as number;
     dik = coupled ? (RHS[2] as number) : 0;
