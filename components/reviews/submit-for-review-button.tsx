@@ -32,36 +32,34 @@ export function SubmitForReviewButton({ projectId, status, disabledReason }: { p
     }
   }
 
-  if (!open) {
-    return (
-      <div className="flex flex-col items-end gap-1">
-        <Button type="button" size="sm" onClick={() => setOpen(true)} disabled={!!reason} data-testid="submit-for-review">
-          Submit for review
-        </Button>
-        {reason ? <span className="text-xs text-muted">{reason}</span> : null}
-      </div>
-    );
-  }
   return (
-    <div className="w-full max-w-md space-y-2 rounded-lg border border-rule bg-sheet p-3" data-testid="submit-for-review-panel">
-      <p className="text-sm">Freeze the project as it is now (stages, inputs and results) and ask the reviewers to sign it off.</p>
-      <label htmlFor="review-note" className="block text-xs font-medium text-muted">
-        Note to the reviewers (optional)
-      </label>
-      <Textarea id="review-note" rows={3} value={note} onChange={(e) => setNote(e.target.value)} maxLength={2000} />
-      {error ? (
-        <p role="alert" className="text-sm text-over">
-          {error.message} {error.revisionId ? <Link href={`/reviews/${error.revisionId}`} className="underline">Open it</Link> : null}
-        </p>
+    <div className="relative flex flex-col items-end gap-1">
+      <Button type="button" size="sm" onClick={() => setOpen((o) => !o)} disabled={!!reason} aria-expanded={open} data-testid="submit-for-review">
+        Submit for review
+      </Button>
+      {reason ? <span className="text-xs text-muted">{reason}</span> : null}
+      {open ? (
+        <div className="absolute right-0 top-full z-20 mt-2 w-96 max-w-[90vw] space-y-2 rounded-lg border border-rule bg-sheet p-3 shadow-lg" data-testid="submit-for-review-panel">
+          <p className="text-sm">Freeze the project as it is now (stages, inputs and results) and ask the reviewers to sign it off.</p>
+          <label htmlFor="review-note" className="block text-xs font-medium text-muted">
+            Note to the reviewers (optional)
+          </label>
+          <Textarea id="review-note" rows={3} value={note} onChange={(e) => setNote(e.target.value)} maxLength={2000} />
+          {error ? (
+            <p role="alert" className="text-sm text-over">
+              {error.message} {error.revisionId ? <Link href={`/reviews/${error.revisionId}`} className="underline">Open it</Link> : null}
+            </p>
+          ) : null}
+          <div className="flex justify-end gap-2">
+            <Button type="button" variant="secondary" size="sm" onClick={() => setOpen(false)} disabled={busy}>
+              Cancel
+            </Button>
+            <Button type="button" size="sm" onClick={submit} disabled={busy}>
+              {busy ? 'Submitting…' : 'Submit revision'}
+            </Button>
+          </div>
+        </div>
       ) : null}
-      <div className="flex justify-end gap-2">
-        <Button type="button" variant="secondary" onClick={() => setOpen(false)} disabled={busy}>
-          Cancel
-        </Button>
-        <Button type="button" onClick={submit} disabled={busy}>
-          {busy ? 'Submitting…' : 'Submit revision'}
-        </Button>
-      </div>
     </div>
   );
 }
