@@ -2,7 +2,7 @@
 
 // Two or three tube types overlaid on common axes: plate curves Ia(Va) or transfer curves Ia(Vg). Draws only.
 import { CartesianGrid, ComposedChart, Line, ResponsiveContainer, XAxis, YAxis } from 'recharts';
-import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceCeil, tickNumber, type LegendEntry } from './chart-parts';
+import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, tickNumber, type LegendEntry } from './chart-parts';
 
 export type CompareSeriesInput = {
   label: string;
@@ -17,14 +17,34 @@ export const COMPARE_STYLES = [
   { color: COLORS.ink, dash: '2 3', kind: 'dashed' as const },
 ];
 
+/** 1, 2 or 5 times a power of ten, giving about `count` intervals over `span`. */
+function niceStep(span: number, count: number): number {
+  const raw = span / count;
+  const p = 10 ** Math.floor(Math.log10(raw));
+  const m = raw / p;
+  return (m < 1.5 ? 1 : m < 3.5 ? 2 : m < 7.5 ? 5 : 10) * p;
+}
+
+function ticks(from: number, to: number, step: number): number[] {
+  const out: number[] = [];
+  for (let v = from; v <= to + step * 1e-6; v += step) out.push(Number(v.toPrecision(6)));
+  return out;
+}
+
 export function CompareChart({ series, mode, xMax, height = 420 }: { series: CompareSeriesInput[]; mode: 'plate' | 'transfer'; xMax?: number; height?: number }) {
   if (series.length === 0) return <EmptyChart height={height}>Choose two or three types.</EmptyChart>;
   const xs = series.flatMap((s) => s.curves.flatMap((c) => c.points.map((p) => p.x)));
-  const x0 = mode === 'plate' ? 0 : Math.min(...xs);
-  const x1 = mode === 'plate' ? (xMax ?? Math.max(...xs)) : 0;
+  const x1Raw = mode === 'plate' ? (xMax ?? Math.max(...xs)) : 0;
+  const span = mode === 'plate' ? x1Raw : -Math.min(...xs);
+  const xStep = niceStep(span, 7);
+  const x0 = mode === 'plate' ? 0 : -Math.ceil(span / xStep - 1e-9) * xStep;
+  const x1 = mode === 'plate' ? Math.ceil(x1Raw / xStep - 1e-9) * xStep : 0;
+  const xTicks = ticks(x0, x1, xStep);
   // Plate curves: scale to the biggest current at mid-range so one large tube does not flatten the others entirely.
   const iaAll = series.flatMap((s) => s.curves.flatMap((c) => c.points.map((p) => p.ia * 1e3)));
-  const iaMax = niceCeil(Math.max(...iaAll, 0.1) * 1.05);
+  const iaStep = niceStep(Math.max(...iaAll, 0.1) * 1.05, 5);
+  const iaMax = Math.ceil((Math.max(...iaAll, 0.1) * 1.05) / iaStep) * iaStep;
+  const iaTicks = ticks(0, iaMax, iaStep);
   const legend: LegendEntry[] = series.map((s, i) => ({ label: s.label, color: COMPARE_STYLES[i]!.color, kind: i === 0 ? 'thick' : 'dashed' }));
   return (
     <figure data-testid="compare-chart" aria-label={mode === 'plate' ? 'Plate curves of the compared types' : 'Transfer curves of the compared types'}>
@@ -36,6 +56,7 @@ export function CompareChart({ series, mode, xMax, height = 420 }: { series: Com
               type="number"
               dataKey="x"
               domain={[x0, x1]}
+              ticks={xTicks}
               allowDataOverflow
               tick={TICK}
               axisLine={AXIS_LINE}
@@ -47,6 +68,7 @@ export function CompareChart({ series, mode, xMax, height = 420 }: { series: Com
               type="number"
               dataKey="ia"
               domain={[0, iaMax]}
+              ticks={iaTicks}
               allowDataOverflow
               tick={TICK}
               axisLine={AXIS_LINE}

@@ -247,7 +247,14 @@ function FitWorkbench({ tube, curveSetId, canWrite, canEditPublished }: { tube: 
           <style>{'@keyframes fitbar { 0% { transform: translateX(-100%); } 100% { transform: translateX(300%); } }'}</style>
         </div>
       ) : null}
-      <PlateCurvesChart curves={curves.map((c) => ({ label: gridLabel(c.gridVoltage), vg: c.gridVoltage, points: c.points }))} measured={d.measured} vaMax={d.vaMax} height={340} stale={fit.isPending} />
+      <PlateCurvesChart
+        // Before a fit there are no model curves; an empty series keeps the chart drawing the measured points alone.
+        curves={curves.length ? curves.map((c) => ({ label: gridLabel(c.gridVoltage), vg: c.gridVoltage, points: c.points })) : [{ label: '', vg: 0, points: [] }]}
+        measured={d.measured}
+        vaMax={d.vaMax}
+        height={340}
+        stale={fit.isPending}
+      />
       <p className="text-xs text-muted">
         Crosses: measured points{d.screenVoltage !== null ? <> at Vg2 = <span className="num">{eng(d.screenVoltage, 'V')}</span></> : null}. {curves.length ? 'Lines: the fitted model at the measured grid voltages.' : 'Run a fit to draw the model over them.'}
       </p>

@@ -188,10 +188,10 @@ function TypicalCard({ plot }: { plot: TubePlot }) {
               <thead className="text-left text-xs text-muted">
                 <tr>
                   <th className="py-1 pr-2 font-medium">Point</th>
-                  <th className="py-1 pr-2 text-right font-medium">Datasheet Ia</th>
+                  <th className="whitespace-nowrap py-1 pr-2 text-right font-medium">Datasheet Ia</th>
                   <th className="py-1 pr-2 text-right font-medium">Model Ia</th>
                   <th className="py-1 pr-2 text-right font-medium">Diff.</th>
-                  <th className="py-1 text-right font-medium">Model gm · ra</th>
+                  <th className="whitespace-nowrap py-1 text-right font-medium">Model gm · ra</th>
                 </tr>
               </thead>
               <tbody className="divide-y divide-rule">
@@ -206,16 +206,16 @@ function TypicalCard({ plot }: { plot: TubePlot }) {
                         </div>
                         <div className="text-xs text-muted">{t.source}</div>
                       </td>
-                      <td className="num py-1.5 pr-2 text-right">{eng(t.datasheetIa, 'A')}</td>
-                      <td className="num py-1.5 pr-2 text-right">{eng(t.modelIa, 'A')}</td>
-                      <td className="py-1.5 pr-2 text-right">
+                      <td className="num whitespace-nowrap py-1.5 pr-2 text-right">{eng(t.datasheetIa, 'A')}</td>
+                      <td className="num whitespace-nowrap py-1.5 pr-2 text-right">{eng(t.modelIa, 'A')}</td>
+                      <td className="whitespace-nowrap py-1.5 pr-2 text-right">
                         {off === null ? '–' : (
                           <Badge tone={off <= 10 ? 'ok' : off <= 30 ? 'near' : 'over'}>
                             <span className="num">{t.errorPercent! > 0 ? '+' : '−'}{off.toFixed(0)} %</span>
                           </Badge>
                         )}
                       </td>
-                      <td className="num py-1.5 text-right text-xs">
+                      <td className="num whitespace-nowrap py-1.5 text-right text-xs">
                         {eng(t.gm, 'S')} · {eng(t.ra, 'Ω')}
                       </td>
                     </tr>

@@ -51,6 +51,8 @@ export function TubeLibrary({ tubes }: { tubes: TubeSummary[] }) {
       id: 'designation',
       // aliases in the value so the search box finds ECC83 as well as 12AX7
       accessorFn: (t) => [t.designation, ...t.aliases].join(' '),
+      // 2A3, 6DJ8, 6L6GC, 12AX7, 300B, EL34: numbers compared as numbers, the way the trade lists them
+      sortingFn: (a, b) => a.original.designation.localeCompare(b.original.designation, 'en', { numeric: true, sensitivity: 'base' }),
       header: 'Type',
       cell: ({ row }) => (
         <div>

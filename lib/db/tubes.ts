@@ -512,7 +512,8 @@ export async function tubePlot(tubeTypeId: number, opts: { modelId?: number; vaM
   const engine = calc.tubeModel(tube);
   const pentode = m.kind === 'koren-pentode';
   const ratedVa = t.ratings.plateVoltage?.value;
-  const vaMax = opts.vaMax ?? (ratedVa ? Math.min(roundUp(ratedVa * 1.5, 50), 1500) : 500);
+  // Whole hundreds, so the axis ends where the curves do.
+  const vaMax = opts.vaMax ?? (ratedVa ? Math.min(roundUp(ratedVa * 1.5, 100), 1500) : 500);
   const typicalVg2 = t.typicalPoints.find((p) => p.screenVoltage)?.screenVoltage;
   const vg2 = pentode ? (opts.screenVoltage ?? typicalVg2 ?? Math.min(t.ratings.screenVoltage?.value ?? 250, 250)) : 0;
   const plateCurves = calc.plateCurveFamily(engine, { vaMax, screenVoltage: vg2, points: 61 });
@@ -574,7 +575,7 @@ export async function compareTubes(ids: number[], opts: { vaMax?: number } = {})
   const types = await TubeType.findAll({ where: { id: { [Op.in]: unique } } });
   if (types.length !== unique.length) throw new ApiError('not_found', 'One of the chosen tube types does not exist.');
   const rated = Math.max(...types.map((t) => t.ratings.plateVoltage?.value ?? 300));
-  const vaMax = opts.vaMax ?? Math.min(roundUp(rated * 1.25, 50), 1500);
+  const vaMax = opts.vaMax ?? Math.min(roundUp(rated * 1.25, 100), 1500);
   const transferVa = 250;
   const series: CompareSeries[] = [];
   for (const id of unique) {

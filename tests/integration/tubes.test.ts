@@ -1,6 +1,6 @@
 // Tube library routes against the seeded test database: listing and search, detail with sourced ratings,
 // creating and editing types and models, the published-entry rule, audit rows, engine tubes and plots.
-import { afterAll, describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it, onTestFinished } from 'vitest';
 import { GET as listRoute, POST as createRoute } from '@/app/api/tubes/route';
 import { GET as getRoute, PATCH as patchRoute } from '@/app/api/tubes/[id]/route';
 import { POST as addModelRoute } from '@/app/api/tubes/[id]/models/route';
@@ -170,6 +170,10 @@ describe('POST /api/tubes and edits', () => {
     expect(publish.status).toBe(403);
 
     const el84 = await idOf('EL84');
+    // a run that stopped half-way must not leave the shared test database with EL84 retired
+    onTestFinished(async () => {
+      await TubeType.update({ retired: false }, { where: { id: el84 } });
+    });
     const retired = await call(patchRoute, { as: 'admin', method: 'PATCH', params: { id: String(el84) }, body: { retired: true } });
     expect(retired.status).toBe(200);
     expect(await auditCount('tube.retire', el84)).toBe(1);
@@ -247,7 +251,7 @@ describe('plots', () => {
     const r = await call(plotRoute, { as: 'reviewer', params: { id: String(await idOf('12AX7')) } });
     expect(r.status).toBe(200);
     const p = r.json;
-    expect(p.vaMax).toBe(450);
+    expect(p.vaMax).toBe(500);
     expect(p.plateCurves.length).toBeGreaterThan(4);
     for (const c of p.plateCurves) for (const pt of c.points) expect(Number.isFinite(pt.ia)).toBe(true);
     expect(p.paMax.length).toBeGreaterThan(5);
