@@ -5,6 +5,7 @@ import { ApiError } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
 import { env } from '@/lib/env';
 import { deliverSoon, enqueueMail } from '@/lib/mail/outbox';
+import { renderProjectReportPdf } from '@/lib/report/project-report';
 import { revisionDecisionMail, revisionSubmittedMail, type StageLine } from '@/lib/mail/review-mails';
 import { revisionHash } from '@/lib/review/content';
 import { diffSnapshots, type RevisionDiff } from '@/lib/review/diff';
@@ -14,7 +15,7 @@ import { decisionSchema, submitRevisionSchema, type DecisionInput, type SubmitRe
 import { Decision, Project, ProjectWatcher, Revision, User, type MailAttachmentRecord } from '@/models';
 import { recordAudit } from './audit';
 import { sequelize } from './index';
-import { getProject } from './projects';
+import { getProject, type ProjectDetail } from './projects';
 
 export type RevisionState = 'submitted' | 'approved' | 'changes-requested';
 
@@ -191,7 +192,15 @@ export async function submitRevision(actor: CurrentUser, projectId: number, raw:
 
 async function reportAttachment(rev: RevisionSummary & { snapshot: RevisionSnapshot }, decision: RevisionPdfMeta['decision']): Promise<MailAttachmentRecord | null> {
   try {
-    const pdf = await renderRevisionPdf(rev.snapshot, { number: rev.number, contentHash: rev.contentHash, submittedBy: rev.submittedBy?.displayName ?? null, submittedAt: rev.submittedAt, decision });
+    const state = decision ? (decision.decision === 'approve' ? 'approved' : 'changes-requested') : rev.state;
+    let pdf: Buffer;
+    try {
+      // The project's design report, rendered from the frozen snapshot and stamped with the revision.
+      pdf = await renderProjectReportPdf({ ...rev.snapshot, watchers: [] } as unknown as ProjectDetail, { revision: { number: rev.number, contentHash: rev.contentHash, state } });
+    } catch (err) {
+      console.error('[revisions] project report failed; sending the compact revision report', err);
+      pdf = await renderRevisionPdf(rev.snapshot, { number: rev.number, contentHash: rev.contentHash, submittedBy: rev.submittedBy?.displayName ?? null, submittedAt: rev.submittedAt, decision });
+    }
     const safe = rev.projectName.replace(/[^A-Za-z0-9]+/g, '-').replace(/^-|-$/g, '').toLowerCase() || 'project';
     return { filename: `anodyne-${safe}-revision-${rev.number}.pdf`, contentType: 'application/pdf', contentBase64: pdf.toString('base64') };
   } catch (err) {

@@ -1,4 +1,5 @@
 // Submitting, reviewing and deciding revisions through the route handlers, and their immutability in the API and in SQL.
+import { PDFParse } from 'pdf-parse';
 import { QueryTypes } from 'sequelize';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { POST as decide } from '@/app/api/revisions/[id]/decision/route';
@@ -106,6 +107,11 @@ describe('revisions: submit, review, decide', () => {
     expect(await Revision.findByPk(first)).not.toBeNull();
     const pdf = await call(report, { as: 'designer', params: { id: String(first) } });
     expect(pdf.res.headers.get('content-type')).toBe('application/pdf');
+    // The report is rendered from the frozen snapshot and carries the revision's number and hash.
+    const text = (await new PDFParse({ data: new Uint8Array(await pdf.res.arrayBuffer()) }).getText()).text;
+    const rev = await Revision.findByPk(first);
+    expect(text).toContain('V1 input');
+    expect(text.replace(/\s+/g, '')).toContain(rev!.contentHash.slice(0, 16));
   });
 
   it('keeps an approved revision in SQL too: the database refuses updates and deletes', async () => {
