@@ -68,6 +68,8 @@ export function steadyState<M extends Record<string, number>, R>(
   runCycle: (m: M, samples?: number) => { means: M; result: R },
   /** where the iteration starts, when a better guess than `start` (the idle means, which set the scale) is known */
   from?: M,
+  /** samples per coarse cycle (an eighth of the full 256 by default) */
+  coarse = COARSE,
 ): { means: M; result: R } {
   if (keys.length === 0) return runCycle({ ...start });
   let m = { ...start };
@@ -76,7 +78,7 @@ export function steadyState<M extends Record<string, number>, R>(
   if (from) m = { ...from };
   const within = (v: number[], tol: number) => v.every((x, i) => Math.abs(x) <= tol * (scale[i] ?? 1));
   const done = (v: number[]) => within(v, 1e-9);
-  const coarseAt = (at: M) => resid(runCycle(at, COARSE), at);
+  const coarseAt = (at: M) => resid(runCycle(at, coarse), at);
   const apply = (at: M, dx: number[]) => {
     const next = { ...at };
     keys.forEach((key, j) => {
@@ -154,9 +156,8 @@ export function mean(xs: ArrayLike<number>): number {
  * start from it) and no evaluation goes far beyond the crossing; Brent then refines inside the last doubling.
  * The tolerance is 1e-7·hi either way.
  */
-export function firstCrossing(g: (x: number) => number, hi: number, start?: number): number | null {
+export function firstCrossing(g: (x: number) => number, hi: number, start?: number, tol = 1e-7 * hi): number | null {
   if (g(0) >= 0) return 0;
-  const tol = 1e-7 * hi;
   if (start === undefined || !(start > 0)) {
     if (g(hi) < 0) return null;
     return brent(g, 0, hi, tol);
@@ -170,4 +171,22 @@ export function firstCrossing(g: (x: number) => number, hi: number, start?: numb
     a = Math.min(2 * a, hi);
   }
   return brent(g, lo, a, tol);
+}
+
+/**
+ * The nearest of several drive limits: each criterion g(a) (negative below its limit) is searched only up to the
+ * nearest limit found so far, since a farther one cannot win. Same tolerance as a search over [0, limit].
+ */
+export function nearestLimit<L extends string>(
+  criteria: Array<[L, (a: number) => number]>,
+  limit: number,
+  scale: number,
+): [L | 'none', number] {
+  let best: [L | 'none', number] = ['none', limit];
+  const tol = 1e-7 * limit;
+  for (const [name, g] of criteria) {
+    const value = firstCrossing(g, best[1], scale, tol);
+    if (value !== null && value < best[1]) best = [name, value];
+  }
+  return best;
 }

@@ -102,7 +102,7 @@ const RHS = new Float64Array(3);
 
 /** Relative Newton step below which the iterate is taken as converged (the next error is ~ its square). */
 const NEWTON_STEP_TOL = 1e-7;
-const NEWTON_MAX_ITER = 40;
+const NEWTON_MAX_ITER = 24;
 
 function networkState(
   ia: number,

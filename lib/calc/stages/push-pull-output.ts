@@ -6,7 +6,7 @@ import { checkRatings } from '../ratings';
 import { cutoff, firstOrderLowPass, responseCurve, type ResponseFactor } from '../response';
 import { expandUpper, solveIncreasing } from '../solve';
 import type { HeadroomLimit, StageAnalysis } from '../types';
-import { firstCrossing, mean, SAMPLES_PER_CYCLE as SAMPLES, sineDrive, steadyState } from './cycle';
+import { mean, nearestLimit, SAMPLES_PER_CYCLE as SAMPLES, sineDrive, steadyState } from './cycle';
 import { solveNetwork } from './network';
 import { modelEvaluations } from '../models/registry';
 import { solveDenseInPlace } from './newton';
@@ -413,7 +413,7 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
       }
       lastCycle.set(count, samples);
       return { means: { ik: ik / half, ig2: ig2 / half }, result: samples };
-    }, from);
+    }, from, Math.max(8, count / 8));
   };
   const amp = input.drive.amplitude;
   const steady = cycleAt(amp);
@@ -428,13 +428,12 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   let last = seed;
   const scale = Math.max(0.5 * Math.abs(opPoint.gridCathodeVoltage), 0.05);
   const solve = (a: number) => (last = solvePP(net, a, m0, last));
-  const candidates: Array<[HeadroomLimit, number | null]> = [
-    ['grid-conduction', firstCrossing((a) => gridBias + a - solve(a).vk, input.supply, scale)],
-    ['plate-saturation', firstCrossing((a) => { const s = solve(a); return 0.15 * vak0 - (plate1(s) - s.vk); }, input.supply, scale)],
+  const criteria: Array<[HeadroomLimit, (a: number) => number]> = [
+    ['grid-conduction', (a) => gridBias + a - solve(a).vk],
+    ['plate-saturation', (a) => { const s = solve(a); return 0.15 * vak0 - (plate1(s) - s.vk); }],
   ];
-  if (input.class === 'A') candidates.push(['cutoff', firstCrossing((a) => 0.01 * op.ia - solve(a).i2, input.supply, scale)]);
-  let best: [HeadroomLimit, number] = ['none', input.supply];
-  for (const [name, value] of candidates) if (value !== null && value < best[1]) best = [name, value];
+  if (input.class === 'A') criteria.push(['cutoff', (a) => 0.01 * op.ia - solve(a).i2]);
+  const best = nearestLimit<HeadroomLimit>(criteria, input.supply, scale);
   const swing = Math.abs(at(best[1]) - at(-best[1])) / 2;
 
   // dissipation is an average: a 64-sample cycle is ample

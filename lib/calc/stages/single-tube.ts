@@ -14,7 +14,7 @@ import {
   type ResponseFactor,
 } from '../response';
 import type { HeadroomLimit, LargeSignal, OperatingPoint, StageAnalysis, StagePlot } from '../types';
-import { firstCrossing, mean, SAMPLES_PER_CYCLE, sineDrive, steadyState } from './cycle';
+import { mean, nearestLimit, SAMPLES_PER_CYCLE, sineDrive, steadyState } from './cycle';
 import { activeMeans, extrapolate, outputVoltage, solveNetwork, type Means, type SampleState, type SingleTubeNetwork } from './network';
 
 export type CommonStageFields = {
@@ -304,13 +304,15 @@ function headroomOf(net: SingleTubeNetwork, m: Means, op: SampleState, supply: n
   const vak0 = op.vp - op.vk;
   // searches walk out from about half the bias (the grid-conduction scale of a plate-loaded stage)
   const scale = Math.max(0.5 * Math.abs(op.vg - op.vk), 0.05);
-  const candidates: Array<[HeadroomLimit, number | null]> = [
-    ['grid-conduction', firstCrossing((a) => { const s = solve(a); return s.vg - s.vk; }, limit, scale)],
-    ['cutoff', firstCrossing((a) => 0.01 * op.ia - solve(-a).ia, limit, scale)],
-    ['plate-saturation', firstCrossing((a) => { const s = solve(a); return 0.15 * vak0 - (s.vp - s.vk); }, limit, scale)],
-  ];
-  let best: [HeadroomLimit, number] = ['none', limit];
-  for (const [name, value] of candidates) if (value !== null && value < best[1]) best = [name, value];
+  const best = nearestLimit<HeadroomLimit>(
+    [
+      ['grid-conduction', (a) => { const s = solve(a); return s.vg - s.vk; }],
+      ['cutoff', (a) => 0.01 * op.ia - solve(-a).ia],
+      ['plate-saturation', (a) => { const s = solve(a); return 0.15 * vak0 - (s.vp - s.vk); }],
+    ],
+    limit,
+    scale,
+  );
   const swing = Math.abs(outputVoltage(net, solve(best[1])) - outputVoltage(net, solve(-best[1]))) / 2;
   return { maxDrive: best[1], limitedBy: best[0], outputSwing: swing };
 }
