@@ -71,7 +71,8 @@ function curveLabels(curves: PlateCurveSeries[], vaMax: number, iaMaxMa: number)
   const all: CurveLabel[] = [];
   for (const c of curves) {
     const spot = labelSpot(toMa(c.points), vaMax, iaMaxMa);
-    if (spot) all.push({ key: `l${c.vg}${c.emphasis ? 'b' : ''}`, text: c.label, va: spot.va, ia: spot.ia, top: spot.ia >= iaMaxMa * 0.97, emphasis: !!c.emphasis });
+    // a label squeezed against the current axis would sit on its tick numbers
+    if (spot && spot.va >= vaMax * 0.08) all.push({ key: `l${c.vg}${c.emphasis ? 'b' : ''}`, text: c.label, va: spot.va, ia: spot.ia, top: spot.ia >= iaMaxMa * 0.97, emphasis: !!c.emphasis });
   }
   const kept: CurveLabel[] = [];
   const near = (a: CurveLabel, b: CurveLabel) =>

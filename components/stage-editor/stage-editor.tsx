@@ -184,7 +184,15 @@ function StageEditorForm({ project, stage, tubes, canEdit }: { project: ProjectD
 
   function onTopologyChange(t: Topology) {
     if (!isNew) return;
-    form.reset(switchTopology(form.getValues(), t), { keepDefaultValues: true });
+    const next = switchTopology(form.getValues(), t);
+    // a pentode amplifier needs a pentode or beam tetrode: swap a triode for the first one in the library
+    const current = tubes.find((x) => String(x.id) === next.tubeId);
+    if (t === 'pentode-amplifier' && (!current || current.family === 'triode')) {
+      const pentode = tubes.find((x) => x.family !== 'triode' && x.models.length > 0);
+      next.tubeId = pentode ? String(pentode.id) : '';
+      next.tubeModelId = '';
+    }
+    form.reset(next, { keepDefaultValues: true });
   }
 
   const analysis = live.analysis;
