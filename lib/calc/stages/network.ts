@@ -268,14 +268,28 @@ export function solveNetwork(
   inject = 0,
   guess?: SampleState,
 ): SampleState {
-  if (guess) {
+  const start = guess ?? (means === null && inject === 0 && vin === 0 ? dcStart(net) : undefined);
+  if (start) {
     const injP = net.output === 'plate' ? inject : 0;
     const injK = net.output === 'cathode' ? inject : 0;
-    const r = newtonNetwork(net, means === null, means ?? ZERO_MEANS, vin, injP, injK, guess);
+    const r = newtonNetwork(net, means === null, means ?? ZERO_MEANS, vin, injP, injK, start);
     if (r) return r;
     modelEvaluations.newtonFallbacks++;
   }
   return solveNetworkBracketed(net, vin, means, inject, guess);
+}
+
+/**
+ * A Newton start for the DC point: half the supply across the DC resistances, capped by the tube's own current
+ * near the supply at the grid offset (or 0 V); the screen takes a fifth of it.
+ */
+function dcStart(net: SingleTubeNetwork): SampleState {
+  const r = net.plateDc + net.cathodeDc;
+  const vg2k = net.screen && net.model.kind === 'pentode' ? net.screen.supply : 0;
+  const cap = net.model.plateCurrent(0.9 * net.supply, Math.min(net.gridOffset, 0), vg2k);
+  const ia = Math.max(1e-9, r > 0 ? Math.min(0.5 * net.supply / r, cap) : cap);
+  const ig2 = vg2k > 0 ? 0.2 * ia : 0;
+  return { ia, ig2, ig: 0, ik: ia + ig2, vp: net.supply, vk: 0, vg: 0, vg2: 0 };
 }
 
 const ZERO_MEANS: Means = { ia: 0, ig2: 0, ik: 0 };
