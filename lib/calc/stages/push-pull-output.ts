@@ -318,7 +318,9 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   const opPoint = operatingPointOf(op, model);
   const net: PPNet = { model, supply: input.supply, halfRdc, raa, gridBias, rk, rkAc: bypassed ? 0 : rk, screen };
   const m0: PPMeans = { ik: 2 * op.ik, ig2: 2 * op.ig2 };
-  const seed = solvePP(net, 0, m0);
+  // idle push-pull state: both tubes at the single-tube idle point (a Newton start)
+  const idle: PPSample = { i1: op.ia, i2: op.ia, ig2a: op.ig2, ig2b: op.ig2, ig1: 0, ig2: 0, v: 0, vk: op.vk, vg2: op.vg2 };
+  const seed = solvePP(net, 0, m0, idle);
   const vak0 = opPoint.plateCathodeVoltage;
   const d = tubeDerivatives(model, vak0, opPoint.gridCathodeVoltage, op.vg2 - op.vk);
 
@@ -413,7 +415,7 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
       }
       lastCycle.set(count, samples);
       return { means: { ik: ik / half, ig2: ig2 / half }, result: samples };
-    }, from, Math.max(8, count / 8));
+    }, from, Math.max(16, count / 8));
   };
   const amp = input.drive.amplitude;
   const steady = cycleAt(amp);
