@@ -3,7 +3,9 @@
 // Seeders must not import server-only modules, so the engine is imported relatively and tubes are read with SQL.
 import { Op, QueryTypes, type QueryInterface } from 'sequelize';
 import { analyzeStage, CalcError } from '../lib/calc';
+import { engineTubeFrom } from '../lib/tubes/engine-tube';
 import { stageBodySchema, stageInputSchema } from '../lib/validation/stage';
+import type { TubeCapacitancesRecord, TubeRatingsRecord } from '../models/types';
 
 type Ctx = { context: QueryInterface };
 
@@ -100,20 +102,8 @@ export const DEMO_PROJECTS: DemoProject[] = [
   },
 ];
 
-type TubeRow = { id: number; designation: string; ratings: Record<string, { value?: number }>; capacitances: Record<string, number> };
+type TubeRow = { id: number; designation: string; ratings: TubeRatingsRecord; capacitances: TubeCapacitancesRecord };
 type ModelRow = { id: number; name: string; kind: string; parameters: Record<string, number> };
-
-// Same mapping as the tube library's engine tube (lib/db/tubes.ts), which seeders cannot import.
-function engineTube(t: TubeRow, m: ModelRow) {
-  const p = m.parameters;
-  const ratings: Record<string, number> = {};
-  for (const [k, v] of Object.entries(t.ratings ?? {})) if (typeof v?.value === 'number' && v.value > 0) ratings[k] = v.value;
-  const c = t.capacitances ?? {};
-  const caps = [c.cgk, c.cga, c.cak].every((x) => typeof x === 'number' && x >= 0) ? { capacitances: { cgk: c.cgk, cga: c.cga, cak: c.cak } } : {};
-  const common = { name: `${t.designation} (${m.name})`.slice(0, 80), ...(p.rgi !== undefined ? { rgi: p.rgi } : {}), ...caps, ratings, ...(p.vct !== undefined ? { vct: p.vct } : {}) };
-  if (m.kind === 'koren-pentode') return { model: 'koren-pentode', mu: p.mu, ex: p.ex, kg1: p.kg1, kg2: p.kg2, kp: p.kp, kvb: p.kvb, ...common };
-  return { model: 'koren-triode', mu: p.mu, ex: p.ex, kg1: p.kg1, kp: p.kp, kvb: p.kvb, ...common };
-}
 
 export async function up({ context: qi }: Ctx) {
   const designations = [...new Set(DEMO_PROJECTS.flatMap((p) => p.stages.map((s) => s.designation)))];
@@ -149,7 +139,7 @@ export async function up({ context: qi }: Ctx) {
         if (!model) analysisError = { code: 'invalid-input', message: `${s.designation} has no model in the library.` };
         else {
           try {
-            analysis = analyzeStage(stageInputSchema.parse({ ...s.inputs, tube: engineTube(tube, model) }));
+            analysis = analyzeStage(stageInputSchema.parse({ ...s.inputs, tube: engineTubeFrom(tube, model) }));
           } catch (err) {
             if (!(err instanceof CalcError)) throw err;
             analysisError = { code: err.code, message: err.message };

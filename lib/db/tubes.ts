@@ -19,6 +19,7 @@ import {
 } from '@/lib/validation/tube';
 import { Attachment, CurveFit, CurveSet, TubeModel, TubeType, User } from '@/models';
 import type { TubeCapacitancesRecord, TubeHeater, TubeRatingsRecord, TypicalPoint } from '@/models/types';
+import { engineTubeFrom } from '@/lib/tubes/engine-tube';
 import { recordAudit } from './audit';
 import { sequelize } from './index';
 
@@ -399,43 +400,12 @@ export async function getModel(tubeTypeId: number, modelId: number) {
   return toModelRow(model);
 }
 
-function engineRatings(r: TubeRatingsRecord): NonNullable<Tube['ratings']> {
-  const out: Record<string, number> = {};
-  for (const k of RATING_KEYS) {
-    const v = r[k]?.value;
-    if (typeof v === 'number' && Number.isFinite(v) && v > 0) out[k] = v;
-  }
-  return out;
-}
-
-function engineCapacitances(c: TubeCapacitancesRecord): { cgk: number; cga: number; cak: number } | undefined {
-  if ([c.cgk, c.cga, c.cak].every((x) => typeof x === 'number' && Number.isFinite(x) && x >= 0)) return { cgk: c.cgk!, cga: c.cga!, cak: c.cak! };
-  return undefined;
-}
-
-/** The engine's inline tube from a type and one of its models (the default one unless modelId is given). */
-export function engineTubeFrom(
-  tube: { designation: string; ratings: TubeRatingsRecord; capacitances: TubeCapacitancesRecord },
-  model: { name: string; kind: ModelRow['kind']; parameters: Record<string, number> },
-): Tube {
-  const p = model.parameters;
-  const common = {
-    name: `${tube.designation} (${model.name})`.slice(0, 80),
-    ...(p.rgi !== undefined ? { rgi: p.rgi } : {}),
-    ...(engineCapacitances(tube.capacitances) ? { capacitances: engineCapacitances(tube.capacitances) } : {}),
-    ratings: engineRatings(tube.ratings),
-  };
-  const vct = p.vct !== undefined ? { vct: p.vct } : {};
-  if (model.kind === 'koren-pentode') {
-    return { model: 'koren-pentode', mu: p.mu!, ex: p.ex!, kg1: p.kg1!, kg2: p.kg2!, kp: p.kp!, kvb: p.kvb!, ...vct, ...common };
-  }
-  return { model: 'koren-triode', mu: p.mu!, ex: p.ex!, kg1: p.kg1!, kp: p.kp!, kvb: p.kvb!, ...vct, ...common };
-}
-
 /**
  * For the stage designer and others: the inline engine tube of a type from its default (or the given) model.
  * Throws ApiError 'not_found' for an unknown type or model, 'unprocessable_entity' when the type has no model.
  */
+export { engineTubeFrom };
+
 export async function getEngineTube(tubeTypeId: number, modelId?: number): Promise<Tube> {
   const tube = await TubeType.findByPk(tubeTypeId);
   if (!tube) throw new ApiError('not_found', 'No such tube type.');
