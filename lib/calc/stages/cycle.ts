@@ -56,11 +56,10 @@ const COARSE = 32;
  * Finds the capacitor-held steady state: cycle means m such that averaging one solved cycle returns m
  * (converged when every residual is within 1e-9 of its scale).
  *
- * Defect correction: the cycle-mean map of a coarse cycle (32 samples) differs from the full cycle's by an
- * offset that hardly depends on m (the mean of a smooth periodic waveform converges fast in the sample count).
- * So the iteration runs on coarse cycles (Newton with a finite-difference Jacobian, then Broyden), a full cycle
- * measures the offset, and the coarse problem is re-solved with the offset added; typically two full cycles in
- * all. If that stalls, Broyden continues on full cycles.
+ * The iteration first converges on coarse cycles (an eighth of the samples; Newton with a finite-difference
+ * Jacobian, then Broyden): the mean of a smooth periodic waveform converges fast in the sample count, so the
+ * coarse fixed point is within ~1e-4 of the full one. Newton–Broyden on full cycles then starts from there
+ * with the coarse Jacobian: typically three full cycles in all, the last one confirming convergence.
  */
 export function steadyState<M extends Record<string, number>, R>(
   keys: Array<keyof M>,
@@ -101,34 +100,20 @@ export function steadyState<M extends Record<string, number>, R>(
     });
   });
 
-  /** Solves coarse(m) + offset = 0 from the current m (Newton–Broyden, tight tolerance: coarse cycles are cheap). */
-  const solveCoarse = (offset: number[]) => {
-    for (let iter = 0; iter < 12; iter++) {
-      const target = gc.map((v, i) => v + (offset[i] ?? 0));
-      if (within(target, 1e-12)) return;
-      const dx = newtonStep(jac, target);
-      if (!dx) return;
-      const next = apply(m, dx);
-      const gNew = coarseAt(next);
-      broyden(jac, diff(next, m), gNew.map((v, i) => v - (gc[i] ?? 0)));
-      m = next;
-      gc = gNew;
-    }
-  };
-
-  const zero = keys.map(() => 0);
-  solveCoarse(zero);
+  // converge the coarse problem (Newton–Broyden, tight tolerance: coarse cycles are cheap)
+  for (let iter = 0; iter < 12; iter++) {
+    if (within(gc, 1e-12)) break;
+    const dx = newtonStep(jac, gc);
+    if (!dx) break;
+    const next = apply(m, dx);
+    const gNew = coarseAt(next);
+    broyden(jac, diff(next, m), gNew.map((v, i) => v - (gc[i] ?? 0)));
+    m = next;
+    gc = gNew;
+  }
   let run = runCycle(m);
   let g = resid(run, m);
-  for (let outer = 0; outer < 3 && !done(g); outer++) {
-    const offset = g.map((v, i) => v - (gc[i] ?? 0));
-    const before = { ...m };
-    solveCoarse(offset);
-    if (diff(m, before).every((v) => v === 0)) break;
-    run = runCycle(m);
-    g = resid(run, m);
-  }
-  // fallback: Broyden on full cycles
+  // then Newton–Broyden on full cycles from there (the coarse Jacobian is already close)
   for (let iter = 0; iter < 10 && !done(g); iter++) {
     const dx = newtonStep(jac, g);
     if (!dx) break;
