@@ -62,6 +62,19 @@ export function logistic(x: number): number {
   return e / (1 + e);
 }
 
+/** softplus(x) into SP[0] and its derivative logistic(x) into SP[1], sharing one exp (same softplus bits). */
+const SP = new Float64Array(2);
+function softplusAndLogistic(x: number): void {
+  if (x > 30 || x < -30) {
+    SP[0] = softplus(x);
+    SP[1] = logistic(x);
+    return;
+  }
+  const e = Math.exp(x);
+  SP[0] = Math.log1p(e);
+  SP[1] = e / (1 + e);
+}
+
 /*
  * Analytic derivatives for the Newton solvers. Each writes the current and its partial derivatives into `out`
  * and returns the current; the current is computed by the same expressions as the plain functions above, so
@@ -78,12 +91,13 @@ export function korenTriodeCurrentD(p: KorenTriodeParams, va: number, vg: number
   const s = Math.sqrt(s2);
   const vgc = vg + (p.vct ?? 0);
   const x = p.kp * (1 / p.mu + vgc / s);
-  const sp = softplus(x);
+  softplusAndLogistic(x);
+  const sp = SP[0] as number;
   const e1 = finiteOrZero((va / p.kp) * sp);
   if (!(e1 > 0)) return 0;
   const ia = finiteOrZero((2 * Math.pow(e1, p.ex)) / p.kg1);
   if (!(ia > 0)) return 0;
-  const sig = logistic(x);
+  const sig = SP[1] as number;
   const dIdE = (p.ex * ia) / e1;
   const dEdvg = (va * sig) / s;
   const dEdva = sp / p.kp - (va * va * sig * vgc) / (s2 * s);
@@ -102,14 +116,15 @@ export function korenPentodePlateCurrentD(p: KorenPentodeParams, va: number, vg1
   if (!(va > 0) || !(vg2 > 0)) return 0;
   const vgc = vg1 + (p.vct ?? 0);
   const x = p.kp * (1 / p.mu + vgc / vg2);
-  const sp = softplus(x);
+  softplusAndLogistic(x);
+  const sp = SP[0] as number;
   const e1 = finiteOrZero((vg2 / p.kp) * sp);
   if (!(e1 > 0)) return 0;
   const at = Math.atan(va / p.kvb);
   const base = (2 * Math.pow(e1, p.ex)) / p.kg1;
   const ia = finiteOrZero(base * at);
   if (!(ia > 0)) return 0;
-  const sig = logistic(x);
+  const sig = SP[1] as number;
   const dIdE = (p.ex * ia) / e1;
   out[0] = ia;
   out[1] = finiteOrZero((base * p.kvb) / (p.kvb * p.kvb + va * va));

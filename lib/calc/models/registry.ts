@@ -38,6 +38,14 @@ export interface TubeModel {
  */
 export const modelEvaluations = { count: 0, newtonFallbacks: 0 };
 
+// Model functions bound once: calls then skip the module-namespace property read that CommonJS-transpiled
+// builds insert on every call of an imported function (measurable in the per-sample loops).
+const triodeD = korenTriodeCurrentD;
+const pentodeD = korenPentodePlateCurrentD;
+const screenD = korenPentodeScreenCurrentD;
+const gridD = gridCurrentD;
+const threeHalvesD = threeHalvesTriodeCurrentD;
+
 const ZERO_CAPS: TubeCapacitances = { cgk: 0, cga: 0, cak: 0 };
 
 export function defaultRgi(tube: Tube): number {
@@ -53,7 +61,7 @@ function common(tube: Tube) {
   return {
     rgi,
     gridCurrent: (vgk: number) => (modelEvaluations.count++, gridCurrent(vgk, rgi)),
-    gridCurrentD: (vgk: number, out: Float64Array) => (modelEvaluations.count++, gridCurrentD(vgk, rgi, out)),
+    gridCurrentD: (vgk: number, out: Float64Array) => (modelEvaluations.count++, gridD(vgk, rgi, out)),
     capacitances: tube.capacitances ?? ZERO_CAPS,
     ratings: tube.ratings ?? {},
   };
@@ -67,7 +75,7 @@ const registry: { [M in Tube['model']]: Builder<M> } = {
     plateCurrentD: (vak, vgk, _vg2k, out) => {
       modelEvaluations.count++;
       out[3] = 0;
-      return korenTriodeCurrentD(tube, vak, vgk, out);
+      return triodeD(tube, vak, vgk, out);
     },
     screenCurrent: () => 0,
   }),
@@ -76,8 +84,8 @@ const registry: { [M in Tube['model']]: Builder<M> } = {
     ...common(tube),
     plateCurrent: (vak, vgk, vg2k) => (modelEvaluations.count++, korenPentodePlateCurrent(tube, vak, vgk, vg2k)),
     screenCurrent: (vgk, vg2k) => (modelEvaluations.count++, korenPentodeScreenCurrent(tube, vgk, vg2k)),
-    plateCurrentD: (vak, vgk, vg2k, out) => (modelEvaluations.count++, korenPentodePlateCurrentD(tube, vak, vgk, vg2k, out)),
-    screenCurrentD: (vgk, vg2k, out) => (modelEvaluations.count++, korenPentodeScreenCurrentD(tube, vgk, vg2k, out)),
+    plateCurrentD: (vak, vgk, vg2k, out) => (modelEvaluations.count++, pentodeD(tube, vak, vgk, vg2k, out)),
+    screenCurrentD: (vgk, vg2k, out) => (modelEvaluations.count++, screenD(tube, vgk, vg2k, out)),
   }),
   'child-langmuir': (tube) => ({
     kind: 'triode',
@@ -86,7 +94,7 @@ const registry: { [M in Tube['model']]: Builder<M> } = {
     plateCurrentD: (vak, vgk, _vg2k, out) => {
       modelEvaluations.count++;
       out[3] = 0;
-      return threeHalvesTriodeCurrentD(tube, vak, vgk, out);
+      return threeHalvesD(tube, vak, vgk, out);
     },
     screenCurrent: () => 0,
   }),

@@ -11,7 +11,7 @@ import { solveNetwork } from './network';
 import { modelEvaluations } from '../models/registry';
 import { solveDenseInPlace } from './newton';
 import { screenParts } from './pentode-amplifier';
-import { checkIdle, operatingPointOf, q3, q5, stagePlot } from './single-tube';
+import { checkIdle, operatingPointOf, stagePlot } from './single-tube';
 
 /*
  * Ideal centre-tapped output transformer, plate-to-plate load Raa, each half-primary N turns.
@@ -95,6 +95,10 @@ function innerPP(c: PPCtx, vk: number): PPSample {
 }
 
 const totalPP = (s: PPSample) => s.i1 + s.i2 + s.ig2a + s.ig2b + s.ig1 + s.ig2;
+
+/** Quadratic and quartic extrapolation one step ahead from the last 3 / 5 values (newest first). */
+const q3 = (a: number, b: number, c: number) => 3 * a - 3 * b + c;
+const q5 = (a: number, b: number, c: number, d: number, e: number) => 5 * a - 10 * b + 10 * c - 5 * d + e;
 
 // Newton scratch (no allocation per sample)
 const P1 = new Float64Array(4);
@@ -207,7 +211,34 @@ function newtonPP(net: PPNet, vin: number, m: PPMeans, guess: PPSample): PPSampl
     RPP[1] = -n1;
     RPP[2] = -n2;
     RPP[3] = -n3;
-    if (!solveDenseInPlace(4, JPP, RPP)) return null;
+    // Structured elimination: the plate block (rows 0–1) is diagonally dominant and row 2 has no plate terms,
+    // so no pivoting is needed; pivoted elimination only if that degenerates.
+    {
+      const j00 = JPP[0] as number, j01 = JPP[1] as number, j02 = JPP[2] as number, j03 = JPP[3] as number;
+      const m10 = (JPP[4] as number) / j00;
+      const a11 = (JPP[5] as number) - m10 * j01;
+      const a12 = (JPP[6] as number) - m10 * j02;
+      const a13 = (JPP[7] as number) - m10 * j03;
+      const b1 = -n1 + m10 * n0;
+      const m30 = (JPP[12] as number) / j00;
+      const a31 = (JPP[13] as number) - m30 * j01;
+      const m31 = a31 / a11;
+      const a32 = (JPP[14] as number) - m30 * j02 - m31 * a12;
+      const a33 = (JPP[15] as number) - m30 * j03 - m31 * a13;
+      const b3 = -n3 + m30 * n0 - m31 * b1;
+      const j22 = JPP[10] as number, j23 = JPP[11] as number;
+      const det = j22 * a33 - j23 * a32;
+      const x2 = (-n2 * a33 - j23 * b3) / det;
+      const x3 = (j22 * b3 + a32 * n2) / det;
+      const x1 = (b1 - a12 * x2 - a13 * x3) / a11;
+      const x0 = (-n0 - j01 * x1 - j02 * x2 - j03 * x3) / j00;
+      if (Number.isFinite(x0) && Number.isFinite(x1) && Number.isFinite(x2) && Number.isFinite(x3)) {
+        RPP[0] = x0;
+        RPP[1] = x1;
+        RPP[2] = x2;
+        RPP[3] = x3;
+      } else if (!solveDenseInPlace(4, JPP, RPP)) return null;
+    }
     d1 = RPP[0] as number;
     d2 = RPP[1] as number;
     dt = useT ? (RPP[2] as number) : 0;
