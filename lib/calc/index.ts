@@ -30,8 +30,8 @@ function allFinite(value: unknown): boolean {
     return true;
   }
   if (value && typeof value === 'object') {
-    const keys = Object.keys(value);
-    for (let i = 0; i < keys.length; i++) if (!allFinite((value as Record<string, unknown>)[keys[i] as string])) return false;
+    // results are plain object literals (no inherited enumerable keys): for-in walks them without allocating
+    for (const k in value) if (!allFinite((value as Record<string, unknown>)[k])) return false;
   }
   return true;
 }
