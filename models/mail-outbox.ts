@@ -13,6 +13,7 @@ export class MailOutbox extends Model<InferAttributes<MailOutbox>, InferCreation
   declare lastError: string | null;
   declare nextAttemptAt: CreationOptional<Date>;
   declare sentAt: Date | null;
+  declare claimedUntil: Date | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -30,6 +31,7 @@ export class MailOutbox extends Model<InferAttributes<MailOutbox>, InferCreation
         lastError: { type: DataTypes.TEXT, allowNull: true },
         nextAttemptAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW },
         sentAt: { type: DataTypes.DATE, allowNull: true },
+        claimedUntil: { type: DataTypes.DATE, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },

@@ -36,7 +36,7 @@ async function deliver(row: MailOutbox) {
       text: row.text,
       attachments: row.attachments.map((a) => ({ filename: a.filename, contentType: a.contentType, content: Buffer.from(a.contentBase64, 'base64') })),
     });
-    await row.update({ status: 'sent', attempts: row.attempts + 1, sentAt: new Date(), lastError: null });
+    await row.update({ status: 'sent', attempts: row.attempts + 1, sentAt: new Date(), lastError: null, claimedUntil: null });
     return true;
   } catch (err) {
     const attempts = row.attempts + 1;
@@ -45,18 +45,20 @@ async function deliver(row: MailOutbox) {
       attempts,
       lastError: err instanceof Error ? err.message : String(err),
       nextAttemptAt: new Date(Date.now() + backoffMs(attempts)),
+      claimedUntil: null,
     });
     return false;
   }
 }
 
 export async function deliverDueMail(opts: { ids?: number[]; ignoreSchedule?: boolean } = {}) {
-  // Claim due rows with a short lease (next_attempt_at pushed a minute ahead) under SKIP LOCKED, so several
-  // app servers can drain the outbox without sending a mail twice; send outside the claiming transaction.
+  // Claim due rows for a minute under SKIP LOCKED, so several app servers (or a forced retry) never send the
+  // same mail twice; the sending itself happens outside the claiming statement.
   const [claimed] = await sequelize.query(
-    `UPDATE mail_outbox SET next_attempt_at = now() + interval '60 seconds', updated_at = now()
+    `UPDATE mail_outbox SET claimed_until = now() + interval '60 seconds', updated_at = now()
       WHERE id IN (SELECT id FROM mail_outbox
                     WHERE status IN ('queued', 'failed')
+                      AND (claimed_until IS NULL OR claimed_until < now())
                       AND (:ignoreSchedule OR next_attempt_at <= now())
                       AND (:noIds OR id IN (:ids))
                     ORDER BY id LIMIT 20 FOR UPDATE SKIP LOCKED)
