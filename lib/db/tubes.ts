@@ -574,10 +574,6 @@ export async function compareTubes(ids: number[], opts: { vaMax?: number } = {})
   return { vaMax, transferPlateVoltage: transferVa, series };
 }
 
-// ngspice-39 has pwr() but no pwrs(); the subcircuit also calls softplus() and the DGRID grid diode.
-// Kept in step with lib/calc's SPICE prelude (not exported from the engine's public entry yet).
-const SUBCIRCUIT_FILE_PRELUDE = ['.func pwrs(x,y) {sgn(x)*pwr(x,y)}', '.func softplus(x) {x > 30 ? x : ln(1+exp(x))}', '.model DGRID D(IS=1n RS=1 N=1)'];
-
 export function spiceName(designation: string, modelName: string, modelId: number) {
   const base = `${designation}_${modelName}`.replace(/[^A-Za-z0-9]+/g, '_').replace(/^_+|_+$/g, '').toUpperCase().slice(0, 40);
   return `${base}_M${modelId}`;
@@ -596,7 +592,7 @@ export async function spiceModelFile(tubeTypeId: number, modelId: number) {
     `* Source of the parameters: ${m.source}`,
     `* Usage: X1 ${pins} ${name}`,
     `* Model estimates only; confirm by measurement before relying on them.`,
-    ...SUBCIRCUIT_FILE_PRELUDE,
+    calc.SPICE_PRELUDE,
     calc.tubeSubcircuit(engineTubeFrom(t, m), name),
     '',
   ].join('\n');
