@@ -55,7 +55,7 @@ export function niceTicks(min: number, max: number, count = 6): number[] {
   return out;
 }
 
-export type LegendEntry = { label: string; color: string; kind: 'line' | 'dashed' | 'dot' | 'bar' | 'thick' };
+export type LegendEntry = { label: string; color: string; kind: 'line' | 'dashed' | 'dot' | 'cross' | 'bar' | 'thick' };
 
 export function ChartLegend({ entries, className }: { entries: LegendEntry[]; className?: string }) {
   return (
@@ -65,6 +65,11 @@ export function ChartLegend({ entries, className }: { entries: LegendEntry[]; cl
           <svg width="22" height="10" aria-hidden className="shrink-0">
             {e.kind === 'dot' ? (
               <circle cx="11" cy="5" r="4" fill={e.color} stroke={COLORS.sheet} strokeWidth="1" />
+            ) : e.kind === 'cross' ? (
+              <g stroke={e.color} strokeWidth="1.3">
+                <line x1="8" y1="2" x2="14" y2="8" />
+                <line x1="8" y1="8" x2="14" y2="2" />
+              </g>
             ) : e.kind === 'bar' ? (
               <rect x="6" y="0" width="10" height="10" fill={e.color} rx="1" />
             ) : (

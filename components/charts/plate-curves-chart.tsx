@@ -100,7 +100,7 @@ export function PlateCurvesChart(props: PlateCurvesChartProps) {
     ...(acLoadLine?.length ? [{ label: 'AC load line', color: COLORS.acline, kind: 'thick' as const }] : []),
     ...(paMax?.length ? [{ label: 'Pa(max)', color: COLORS.limit, kind: 'dashed' as const }] : []),
     ...(operatingPoint ? [{ label: 'Operating point', color: COLORS.heater, kind: 'dot' as const }] : []),
-    ...(measured?.length ? [{ label: 'Measured', color: COLORS.ink, kind: 'dot' as const }] : []),
+    ...(measured?.length ? [{ label: 'Measured', color: COLORS.ink, kind: 'cross' as const }] : []),
   ];
   return (
     <figure
