@@ -16,8 +16,8 @@ const BODIES: [string, unknown][] = [
   ['not JSON', '{"oops'],
   ['an array', [1, 2, 3]],
   ['null', 'null'],
-  ['wrong types everywhere', { name: 42, version: 'x', supply: { nodes: 'no' }, topology: 7, decision: true, email: [], model: {} }],
-  ['numbers out of range', { version: -1, supply: -300, plateResistor: 'abc', cathodeResistor: '4x7', tubeId: 1e12 }],
+  ['wrong types everywhere', { name: 42, note: 42, comment: 42, version: 'x', supply: { nodes: 'no' }, topology: 7, decision: true, email: [], model: {} }],
+  ['numbers out of range', { note: -1, comment: -1, version: -1, supply: -300, plateResistor: 'abc', cathodeResistor: '4x7', tubeId: 1e12 }],
 ];
 
 type Handler = Parameters<typeof call>[0];
