@@ -7,6 +7,8 @@ ANODYNE_MODE="${1:-dev}"
 ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
 cd "$ROOT"
 export NEXT_TELEMETRY_DISABLED=1
+# The S3 SDK warns that its releases after early 2027 need Node 22; our version is pinned in the lockfile.
+export AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED=true
 mkdir -p .data
 
 log() { printf '\033[2m[setup]\033[0m %s\n' "$*"; }

@@ -10,3 +10,4 @@ process.env.MAIL_SINK_URL ??= 'http://127.0.0.1:2580';
 process.env.S3_BUCKET ??= 'anodyne-test';
 process.env.APP_URL ??= 'http://localhost:3100';
 process.env.OUTBOX_WORKER = 'off';
+process.env.AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED ??= 'true';
