@@ -71,8 +71,9 @@ function trimZeros(s: string): string {
 /** Formats a value in engineering notation with `digits` significant figures: 4700 → '4.7 kΩ'. */
 export function formatEng(value: number, unit = '', digits = 3): string {
   if (!Number.isFinite(value)) return `– ${unit}`.trim();
-  if (value === 0) return `0 ${unit}`.trim();
   const abs = Math.abs(value);
+  // below a thousandth of a pico-unit nothing a stage produces is real: it is rounding noise (e.g. zero drive)
+  if (value === 0 || abs < 1e-15) return `0 ${unit}`.trim();
   let index = FORMAT_PREFIXES.findIndex(([scale]) => abs >= scale * 0.9999999);
   if (index < 0) index = FORMAT_PREFIXES.length - 1;
   let [scale, prefix] = FORMAT_PREFIXES[index] ?? [1, ''];

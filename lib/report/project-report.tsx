@@ -310,7 +310,8 @@ export function ProjectReport({ project, opts = {} }: { project: ProjectDetail; 
         <Text style={s.muted}>
           {t(`Design report · status ${project.status.replace('-', ' ')}${project.archived ? ' (archived)' : ''} · owner ${project.owner?.displayName ?? '–'} · project version ${project.version} · generated ${when} UTC`)}
         </Text>
-        {rev ? <Text style={s.muted}>{t(`Revision ${rev.number} (${rev.state}) · content hash ${rev.contentHash}`)}</Text> : null}
+        {rev ? <Text style={s.muted}>{t(`Revision ${rev.number} (${rev.state}) · content hash (SHA-256)`)}</Text> : null}
+        {rev ? <Text style={[s.muted, { fontSize: 7 }]}>{rev.contentHash}</Text> : null}
         {project.description ? <Text style={{ marginTop: 6 }}>{t(project.description)}</Text> : null}
         <View style={s.caution}>
           <Text>

@@ -59,6 +59,8 @@ describe('formatEng', () => {
     [470e-12, 'F', '470 pF'],
     [123456, 'Hz', '123 kHz'],
     [330, 'V', '330 V'],
+    [6.66e-16, 'V', '0 V'],
+    [1.5e-13, 'A', '0.15 pA'],
   ])('%d %s → %s', (value, unit, text) => {
     expect(formatEng(value, unit)).toBe(text);
   });
