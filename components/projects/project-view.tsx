@@ -11,7 +11,7 @@ import { Button, buttonVariants } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { Input, Textarea } from '@/components/ui/input';
-import type { ProjectDetail, StageDTO } from '@/lib/db/projects';
+import type { ProjectDetail, StageDTO, WatcherOption } from '@/lib/db/projects';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import { TOPOLOGY_LABELS } from '@/lib/report/labels';
 import { formatEng } from '@/lib/units';
@@ -19,6 +19,7 @@ import { cn } from '@/lib/utils';
 import { renameProjectSchema, type RenameProjectInput } from '@/lib/validation/project';
 import { SubmitForReviewButton } from '@/components/reviews/submit-for-review-button';
 import { ChainView } from './chain-view';
+import { ReviewSettings } from './review-settings';
 import { SupplyEditor } from './supply-editor';
 
 export const projectKey = (id: number) => ['project', id] as const;
@@ -33,7 +34,7 @@ function Num({ v, unit, digits = 3 }: { v: number | null | undefined; unit: stri
   return <span className="num">{typeof v === 'number' ? formatEng(v, unit, digits) : '–'}</span>;
 }
 
-export function ProjectView({ initialProject, canWrite }: { initialProject: ProjectDetail; canWrite: boolean }) {
+export function ProjectView({ initialProject, canWrite, watcherOptions = [] }: { initialProject: ProjectDetail; canWrite: boolean; watcherOptions?: WatcherOption[] }) {
   const qc = useQueryClient();
   const query = useQuery({
     queryKey: projectKey(initialProject.id),
@@ -114,6 +115,8 @@ export function ProjectView({ initialProject, canWrite }: { initialProject: Proj
       <ChainView project={project} />
 
       <SupplyEditor project={project} editable={editable} onSaved={setProject} />
+
+      <ReviewSettings project={project} editable={editable} users={watcherOptions} onSaved={setProject} />
     </div>
   );
 }

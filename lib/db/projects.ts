@@ -13,6 +13,7 @@ import {
 } from '@/lib/validation/project';
 import { Project, ProjectWatcher, Stage, TubeType, User } from '@/models';
 import type { ProjectSupplyRecord } from '@/models/types';
+import type { Role } from '@/models/user';
 import { recordAudit } from './audit';
 import { sequelize } from './index';
 import { engineInputFor, stageDTOs, type StageDTO } from './stages';
@@ -95,6 +96,14 @@ export async function listProjects(query: Partial<ListProjectsQuery> = {}): Prom
     stageCount: r.stage_count,
     ratingProblems: r.problems,
   }));
+}
+
+export type WatcherOption = { id: number; displayName: string; role: Role };
+
+/** The active users, for the watcher picker on the project page. */
+export async function listWatcherOptions(): Promise<WatcherOption[]> {
+  const users = await User.findAll({ where: { active: true }, attributes: ['id', 'displayName', 'role'], order: [['displayName', 'ASC'], ['id', 'ASC']] });
+  return users.map((u) => ({ id: u.id, displayName: u.displayName, role: u.role }));
 }
 
 export async function getProject(id: number): Promise<ProjectDetail> {

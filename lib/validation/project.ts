@@ -63,9 +63,14 @@ export const createProjectSchema = z.object({
 });
 export type CreateProjectInput = z.input<typeof createProjectSchema>;
 
-export const benchTolerancesSchema = z.record(
-  z.string().min(1).max(60),
-  z.number({ message: 'must be a number' }).finite().nonnegative('must not be negative'),
+/** The quantities a bench check compares (the keys of lib/calc/bench's BENCH_QUANTITIES; validation imports only zod). */
+export const BENCH_TOLERANCE_KEYS = ['supplyVoltage', 'plateVoltage', 'cathodeVoltage', 'screenVoltage', 'heaterVoltage', 'plateCurrent', 'plateCathodeVoltage', 'plateDissipation', 'screenDissipation'] as const;
+export type BenchToleranceKey = (typeof BENCH_TOLERANCE_KEYS)[number];
+
+/** Per-project bench tolerances as fractions (0.05 = ±5 %); a quantity left out uses the ±10 % default. The settings card enters percent. */
+export const benchTolerancesSchema = z.partialRecord(
+  z.enum(BENCH_TOLERANCE_KEYS, { message: 'not a quantity the bench check compares' }),
+  z.number({ message: 'must be a number' }).gt(0, 'must be above 0 %').max(1, 'must be at most 100 %'),
 );
 
 export const updateProjectSchema = z

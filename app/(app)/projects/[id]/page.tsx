@@ -4,7 +4,7 @@ import { ProjectView } from '@/components/projects/project-view';
 import { ApiError } from '@/lib/api/errors';
 import { can } from '@/lib/auth/policy';
 import { requirePageUser } from '@/lib/auth/session';
-import { getProject, type ProjectDetail } from '@/lib/db/projects';
+import { getProject, listWatcherOptions, type ProjectDetail } from '@/lib/db/projects';
 
 export const metadata: Metadata = { title: 'Project' };
 
@@ -19,5 +19,6 @@ export default async function ProjectPage({ params }: { params: Promise<{ id: st
     if (err instanceof ApiError && err.code === 'not_found') notFound();
     throw err;
   }
-  return <ProjectView initialProject={project} canWrite={can(user.role, 'projects:write')} />;
+  const canWrite = can(user.role, 'projects:write');
+  return <ProjectView initialProject={project} canWrite={canWrite} watcherOptions={canWrite ? await listWatcherOptions() : []} />;
 }
