@@ -15,10 +15,11 @@ type Texts = Partial<Record<BenchToleranceKey, string>>;
 type Errors = Partial<Record<BenchToleranceKey, string>>;
 type Conflict = { message: string; current: ProjectDetail };
 
+// Shown beside the label: where a quantity applies or what it is compared with.
 const WHEN: Partial<Record<BenchToleranceKey, string>> = {
-  screenVoltage: 'pentodes and beam tetrodes',
-  screenDissipation: 'pentodes and beam tetrodes',
-  heaterVoltage: 'against the nominal heater voltage',
+  screenVoltage: 'pentodes',
+  screenDissipation: 'pentodes',
+  heaterVoltage: 'of nominal',
 };
 const DEFAULT_PERCENT = DEFAULT_BENCH_TOLERANCE * 100;
 
@@ -186,18 +187,18 @@ export function ReviewSettings({
             ±<span className="num">{DEFAULT_PERCENT}</span> % (common workshop practice).
           </p>
           {editable ? (
-            <div className="grid grid-cols-1 gap-x-5 gap-y-3 sm:grid-cols-2 lg:grid-cols-3">
+            <div className="grid grid-cols-[repeat(auto-fill,minmax(13rem,16rem))] gap-x-6 gap-y-3">
               {BENCH_QUANTITIES.map(({ key, label }) => {
                 const text = texts[key] ?? '';
                 const set = text.trim() !== '';
                 return (
                   <div key={key} data-testid={`tolerance-${key}`}>
-                    <Field label={`${label} ±`} htmlFor={`tolerance-${key}`} unit="%" error={errors[key]}>
+                    <Field label={`${label}${WHEN[key] ? ` (${WHEN[key]})` : ''} ±`} htmlFor={`tolerance-${key}`} unit="%" error={errors[key]}>
                       <Input
                         id={`tolerance-${key}`}
                         className="num"
                         inputMode="decimal"
-                        placeholder={String(DEFAULT_PERCENT)}
+                        placeholder="default"
                         value={text}
                         aria-invalid={Boolean(errors[key])}
                         aria-describedby={errors[key] ? `tolerance-${key}-error` : `tolerance-${key}-note`}
@@ -206,7 +207,7 @@ export function ReviewSettings({
                       />
                     </Field>
                     <div id={`tolerance-${key}-note`} className="mt-0.5 flex min-h-6 items-center justify-between gap-2 text-xs text-muted">
-                      <span>{set ? (WHEN[key] ?? 'project value') : <>default ±{DEFAULT_PERCENT} % (common practice){WHEN[key] ? `; ${WHEN[key]}` : ''}</>}</span>
+                      <span>{set ? 'project value' : `default ±${DEFAULT_PERCENT} % (common practice)`}</span>
                       {set ? (
                         <Button type="button" variant="ghost" size="sm" className="h-6 px-1.5 text-xs" aria-label={`Reset ${label} to default`} onClick={() => setText(key, '')}>
                           reset to default
@@ -218,15 +219,17 @@ export function ReviewSettings({
               })}
             </div>
           ) : (
-            <dl className="grid grid-cols-1 gap-x-5 gap-y-1 text-sm sm:grid-cols-2 lg:grid-cols-3" data-testid="tolerances-readonly">
+            <dl className="grid grid-cols-1 gap-x-6 gap-y-1 text-sm sm:grid-cols-2 lg:grid-cols-3" data-testid="tolerances-readonly">
               {BENCH_QUANTITIES.map(({ key, label }) => {
                 const v = project.benchTolerances?.[key];
                 return (
                   <div key={key} className="flex items-baseline justify-between gap-3 border-b border-rule/60 py-1" data-testid={`tolerance-${key}`}>
-                    <dt className="text-muted">{label}</dt>
-                    <dd>
+                    <dt className="text-muted">{label}{WHEN[key] ? ` (${WHEN[key]})` : ''}</dt>
+                    <dd className="shrink-0 whitespace-nowrap">
                       {typeof v === 'number' ? (
-                        <span className="num">±{percentText(v)} %</span>
+                        <span>
+                          <span className="num font-semibold">±{percentText(v)} %</span> <span className="text-xs text-muted">project</span>
+                        </span>
                       ) : (
                         <span className="text-muted">
                           <span className="num">±{DEFAULT_PERCENT} %</span> default
