@@ -1,7 +1,7 @@
 'use client';
 
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
 import { useFieldArray, useForm, type FieldErrors } from 'react-hook-form';
 import { Button } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
@@ -34,7 +34,21 @@ export function SupplyEditor({ project, editable, onSaved }: { project: ProjectD
   const [saved, setSaved] = useState(false);
   const [conflict, setConflict] = useState<Conflict | null>(null);
   const [baseVersion, setBaseVersion] = useState(project.version);
+  const [baseSupply, setBaseSupply] = useState(() => JSON.stringify(project.supply));
   const { errors, isSubmitting, isDirty } = form.formState;
+  // Another card on the page saved the project (rename, settings…): when the supply itself is as this form last
+  // read it, follow the new version so a supply save is not refused for a change it does not overlap; when the
+  // supply did change, show it unless something is typed here (then the save gets the 409 and its choices).
+  useEffect(() => {
+    if (project.version === baseVersion) return;
+    const supplyNow = JSON.stringify(project.supply);
+    if (supplyNow === baseSupply) setBaseVersion(project.version);
+    else if (!form.formState.isDirty) {
+      form.reset(toForm(project.supply));
+      setBaseSupply(supplyNow);
+      setBaseVersion(project.version);
+    }
+  }, [project.version, project.supply, baseVersion, baseSupply, form]);
   // rawVoltage may be empty (no solution wanted yet)
   const rawText = form.watch('rawVoltage');
 
@@ -46,6 +60,7 @@ export function SupplyEditor({ project, editable, onSaved }: { project: ProjectD
       const r = await fetchJson<{ project: ProjectDetail }>(`/api/projects/${project.id}`, { method: 'PATCH', body: { version, supply } });
       setConflict(null);
       setBaseVersion(r.project.version);
+      setBaseSupply(JSON.stringify(r.project.supply));
       form.reset(toForm(r.project.supply));
       onSaved(r.project);
       setSaved(true);
@@ -140,7 +155,7 @@ export function SupplyEditor({ project, editable, onSaved }: { project: ProjectD
               <p>{conflict.message}</p>
               <p className="text-xs text-muted">Your values are still in the form above.</p>
               <div className="flex gap-2">
-                <Button type="button" size="sm" variant="secondary" onClick={() => { form.reset(toForm(conflict.current.supply)); setBaseVersion(conflict.current.version); onSaved(conflict.current); setConflict(null); }}>
+                <Button type="button" size="sm" variant="secondary" onClick={() => { form.reset(toForm(conflict.current.supply)); setBaseVersion(conflict.current.version); setBaseSupply(JSON.stringify(conflict.current.supply)); onSaved(conflict.current); setConflict(null); }}>
                   Reload their version
                 </Button>
                 <Button type="button" size="sm" onClick={form.handleSubmit((v) => save(v, conflict.current.version))}>Save mine over it</Button>

@@ -36,12 +36,6 @@ export const benchListQuerySchema = z.object({
 });
 export type BenchListQuery = z.output<typeof benchListQuerySchema>;
 
-/** Per-project bench tolerances as fractions (0.1 = ±10 %). */
-export const benchTolerancesSchema = z.record(
-  z.enum(['supplyVoltage', 'plateVoltage', 'cathodeVoltage', 'screenVoltage', 'heaterVoltage', 'plateCurrent', 'plateCathodeVoltage', 'plateDissipation', 'screenDissipation']),
-  z.number().gt(0, 'must be above 0 %').max(1, 'must be at most 100 %'),
-);
-
 export const PHOTO_TYPES = ['image/jpeg', 'image/png', 'image/webp'] as const;
 export const MAX_PHOTO_BYTES = 8 * 1024 * 1024;
 
