@@ -1,5 +1,6 @@
 // Shared look for every chart: colours come from the theme's CSS variables so light and dark both read well.
 import * as React from 'react';
+import { ResponsiveContainer } from 'recharts';
 import { cn } from '@/lib/utils';
 
 export const COLORS = {
@@ -96,5 +97,27 @@ export function EmptyChart({ height, children }: { height: number; children: Rea
     <div style={{ height }} className="flex items-center justify-center rounded-md border border-dashed border-rule text-sm text-muted">
       {children}
     </div>
+  );
+}
+
+// The frame every engine chart shares: a labelled figure, faded while its result is stale, the chart sized to the
+// given height, and an optional legend or note under it.
+export function ChartFrame({ testId, label, stale, height, footer, children }: {
+  testId: string;
+  label: string;
+  stale?: boolean;
+  height: number;
+  footer?: React.ReactNode;
+  children: React.ReactElement;
+}) {
+  return (
+    <figure data-testid={testId} data-stale={stale ? 'true' : 'false'} aria-label={label}>
+      <div style={{ height }} className={stale ? 'opacity-60' : undefined}>
+        <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 600, height }}>
+          {children}
+        </ResponsiveContainer>
+      </div>
+      {footer}
+    </figure>
   );
 }

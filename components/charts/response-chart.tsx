@@ -1,8 +1,8 @@
 'use client';
 
 // Small-signal frequency response: magnitude (dB) and phase (degrees) over a log frequency axis.
-import { CartesianGrid, ComposedChart, Line, ReferenceLine, ResponsiveContainer, XAxis, YAxis } from 'recharts';
-import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, tickNumber } from './chart-parts';
+import { CartesianGrid, ComposedChart, Line, ReferenceLine, XAxis, YAxis } from 'recharts';
+import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, tickNumber, ChartFrame } from './chart-parts';
 
 export type ResponseChartProps = {
   points: { frequency: number; magnitudeDb: number; phaseDeg: number }[];
@@ -62,62 +62,59 @@ export function ResponseChart({ points, lowCutoff, highCutoff, height = 280, sta
   const phaseScale = phaseAxis(phase);
   const inRange = (f: number | null | undefined): f is number => typeof f === 'number' && f >= fMin && f <= fMax;
   return (
-    <figure data-testid="response-chart" data-stale={stale ? 'true' : 'false'} aria-label="Frequency response, magnitude and phase">
-      <div style={{ height }} className={stale ? 'opacity-60' : undefined}>
-        <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 600, height }}>
-          <ComposedChart data={data} margin={{ top: 12, right: 8, bottom: 22, left: 6 }}>
-            <CartesianGrid {...GRID} />
-            <XAxis
-              type="number"
-              dataKey="frequency"
-              scale="log"
-              domain={[fMin, fMax]}
-              ticks={DECADES.filter((d) => d >= fMin && d <= fMax)}
-              allowDataOverflow
-              tick={TICK}
-              axisLine={AXIS_LINE}
-              tickLine={AXIS_LINE}
-              tickFormatter={tickNumber}
-              label={{ value: 'Frequency (Hz)', position: 'insideBottom', offset: -12, ...AXIS_LABEL }}
-            />
-            <YAxis
-              yAxisId="mag"
-              type="number"
-              domain={[magLo, magHi]}
-              allowDataOverflow
-              tick={TICK}
-              axisLine={AXIS_LINE}
-              tickLine={AXIS_LINE}
-              width={48}
-              label={{ value: 'Gain (dB)', angle: -90, position: 'insideLeft', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
-            />
-            <YAxis
-              yAxisId="phase"
-              orientation="right"
-              type="number"
-              domain={phaseScale.domain}
-              ticks={phaseScale.ticks}
-              allowDataOverflow
-              tick={TICK}
-              axisLine={AXIS_LINE}
-              tickLine={AXIS_LINE}
-              width={62}
-              label={{ value: 'Phase (°)', angle: 90, position: 'insideRight', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
-            />
-            {inRange(lowCutoff) ? <ReferenceLine yAxisId="mag" x={lowCutoff} stroke={COLORS.muted} strokeDasharray="3 3" label={{ value: '−3 dB', position: 'insideTopRight', fill: COLORS.muted, fontSize: 10 }} /> : null}
-            {inRange(highCutoff) ? <ReferenceLine yAxisId="mag" x={highCutoff} stroke={COLORS.muted} strokeDasharray="3 3" label={{ value: '−3 dB', position: 'insideTopLeft', fill: COLORS.muted, fontSize: 10 }} /> : null}
-            <Line yAxisId="phase" dataKey="phaseDeg" type="monotone" stroke={COLORS.muted} strokeWidth={1.5} strokeDasharray="5 3" dot={false} activeDot={false} isAnimationActive={false} />
-            <Line yAxisId="mag" dataKey="magnitudeDb" type="monotone" stroke={COLORS.dcline} strokeWidth={2.25} dot={false} activeDot={false} isAnimationActive={false} />
-          </ComposedChart>
-        </ResponsiveContainer>
-      </div>
-      <ChartLegend
-        className="mt-1"
-        entries={[
-          { label: 'Magnitude (left axis)', color: COLORS.dcline, kind: 'thick' },
-          { label: 'Phase (right axis)', color: COLORS.muted, kind: 'dashed' },
-        ]}
-      />
-    </figure>
+    <ChartFrame testId="response-chart" label="Frequency response, magnitude and phase" stale={stale} height={height} footer={
+        <ChartLegend
+          className="mt-1"
+          entries={[
+            { label: 'Magnitude (left axis)', color: COLORS.dcline, kind: 'thick' },
+            { label: 'Phase (right axis)', color: COLORS.muted, kind: 'dashed' },
+          ]}
+        />
+      }>
+      <ComposedChart data={data} margin={{ top: 12, right: 8, bottom: 22, left: 6 }}>
+        <CartesianGrid {...GRID} />
+        <XAxis
+          type="number"
+          dataKey="frequency"
+          scale="log"
+          domain={[fMin, fMax]}
+          ticks={DECADES.filter((d) => d >= fMin && d <= fMax)}
+          allowDataOverflow
+          tick={TICK}
+          axisLine={AXIS_LINE}
+          tickLine={AXIS_LINE}
+          tickFormatter={tickNumber}
+          label={{ value: 'Frequency (Hz)', position: 'insideBottom', offset: -12, ...AXIS_LABEL }}
+        />
+        <YAxis
+          yAxisId="mag"
+          type="number"
+          domain={[magLo, magHi]}
+          allowDataOverflow
+          tick={TICK}
+          axisLine={AXIS_LINE}
+          tickLine={AXIS_LINE}
+          width={48}
+          label={{ value: 'Gain (dB)', angle: -90, position: 'insideLeft', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
+        />
+        <YAxis
+          yAxisId="phase"
+          orientation="right"
+          type="number"
+          domain={phaseScale.domain}
+          ticks={phaseScale.ticks}
+          allowDataOverflow
+          tick={TICK}
+          axisLine={AXIS_LINE}
+          tickLine={AXIS_LINE}
+          width={62}
+          label={{ value: 'Phase (°)', angle: 90, position: 'insideRight', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
+        />
+        {inRange(lowCutoff) ? <ReferenceLine yAxisId="mag" x={lowCutoff} stroke={COLORS.muted} strokeDasharray="3 3" label={{ value: '−3 dB', position: 'insideTopRight', fill: COLORS.muted, fontSize: 10 }} /> : null}
+        {inRange(highCutoff) ? <ReferenceLine yAxisId="mag" x={highCutoff} stroke={COLORS.muted} strokeDasharray="3 3" label={{ value: '−3 dB', position: 'insideTopLeft', fill: COLORS.muted, fontSize: 10 }} /> : null}
+        <Line yAxisId="phase" dataKey="phaseDeg" type="monotone" stroke={COLORS.muted} strokeWidth={1.5} strokeDasharray="5 3" dot={false} activeDot={false} isAnimationActive={false} />
+        <Line yAxisId="mag" dataKey="magnitudeDb" type="monotone" stroke={COLORS.dcline} strokeWidth={2.25} dot={false} activeDot={false} isAnimationActive={false} />
+      </ComposedChart>
+    </ChartFrame>
   );
 }

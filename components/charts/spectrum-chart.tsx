@@ -1,8 +1,8 @@
 'use client';
 
 // Harmonic levels relative to the fundamental, orders 2–10, as bars rising from a floor.
-import { Bar, BarChart, CartesianGrid, LabelList, ResponsiveContainer, XAxis, YAxis } from 'recharts';
-import { AXIS_LABEL, AXIS_LINE, COLORS, EmptyChart, GRID, TICK } from './chart-parts';
+import { Bar, BarChart, CartesianGrid, LabelList, XAxis, YAxis } from 'recharts';
+import { AXIS_LABEL, AXIS_LINE, COLORS, EmptyChart, GRID, TICK, ChartFrame } from './chart-parts';
 
 export type SpectrumChartProps = {
   /** db: level relative to the fundamental (negative) */
@@ -29,37 +29,33 @@ export function SpectrumChart({ harmonics, floorDb, height = 280, stale = false 
   const ticks: number[] = [];
   for (let v = 0; v >= floor; v -= 20) ticks.push(v);
   return (
-    <figure data-testid="spectrum-chart" data-stale={stale ? 'true' : 'false'} aria-label="Harmonic spectrum in dB below the fundamental">
-      <div style={{ height }} className={stale ? 'opacity-60' : undefined}>
-        <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 600, height }}>
-          <BarChart data={data} margin={{ top: 18, right: 16, bottom: 22, left: 6 }}>
-            <CartesianGrid {...GRID} vertical={false} />
-            <XAxis
-              dataKey="order"
-              type="category"
-              tick={TICK}
-              axisLine={AXIS_LINE}
-              tickLine={AXIS_LINE}
-              tickFormatter={(o: number) => `H${o}`}
-              label={{ value: 'Harmonic order', position: 'insideBottom', offset: -12, ...AXIS_LABEL }}
-            />
-            <YAxis
-              type="number"
-              domain={[floor, 0]}
-              ticks={ticks}
-              allowDataOverflow
-              tick={TICK}
-              axisLine={AXIS_LINE}
-              tickLine={AXIS_LINE}
-              width={52}
-              label={{ value: 'dB re fundamental', angle: -90, position: 'insideLeft', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
-            />
-            <Bar dataKey="range" fill={COLORS.dcline} isAnimationActive={false} maxBarSize={34} radius={[2, 2, 0, 0]}>
-              <LabelList dataKey="text" position="top" fill={COLORS.ink} fontSize={10} />
-            </Bar>
-          </BarChart>
-        </ResponsiveContainer>
-      </div>
-    </figure>
+    <ChartFrame testId="spectrum-chart" label="Harmonic spectrum in dB below the fundamental" stale={stale} height={height}>
+      <BarChart data={data} margin={{ top: 18, right: 16, bottom: 22, left: 6 }}>
+        <CartesianGrid {...GRID} vertical={false} />
+        <XAxis
+          dataKey="order"
+          type="category"
+          tick={TICK}
+          axisLine={AXIS_LINE}
+          tickLine={AXIS_LINE}
+          tickFormatter={(o: number) => `H${o}`}
+          label={{ value: 'Harmonic order', position: 'insideBottom', offset: -12, ...AXIS_LABEL }}
+        />
+        <YAxis
+          type="number"
+          domain={[floor, 0]}
+          ticks={ticks}
+          allowDataOverflow
+          tick={TICK}
+          axisLine={AXIS_LINE}
+          tickLine={AXIS_LINE}
+          width={52}
+          label={{ value: 'dB re fundamental', angle: -90, position: 'insideLeft', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
+        />
+        <Bar dataKey="range" fill={COLORS.dcline} isAnimationActive={false} maxBarSize={34} radius={[2, 2, 0, 0]}>
+          <LabelList dataKey="text" position="top" fill={COLORS.ink} fontSize={10} />
+        </Bar>
+      </BarChart>
+    </ChartFrame>
   );
 }

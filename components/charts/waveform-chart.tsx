@@ -2,8 +2,8 @@
 
 // Input (grid drive) and output voltage over one period at the chosen drive. Separate axes: the output is
 // usually tens of times larger than the input.
-import { CartesianGrid, ComposedChart, Line, ReferenceLine, ResponsiveContainer, XAxis, YAxis } from 'recharts';
-import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceStep, niceTicks, tickNumber } from './chart-parts';
+import { CartesianGrid, ComposedChart, Line, ReferenceLine, XAxis, YAxis } from 'recharts';
+import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, niceStep, niceTicks, tickNumber, ChartFrame } from './chart-parts';
 
 export type WaveformChartProps = {
   /** seconds */
@@ -34,60 +34,57 @@ export function WaveformChart({ t, input, output, height = 280, stale = false }:
   const msEnd = data[data.length - 1]?.ms ?? 1;
   const tTicks = niceTicks(0, msEnd, 5).filter((v) => v <= msEnd + 1e-12);
   return (
-    <figure data-testid="waveform-chart" data-stale={stale ? 'true' : 'false'} aria-label="Input and output waveforms">
-      <div style={{ height }} className={stale ? 'opacity-60' : undefined}>
-        <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 600, height }}>
-          <ComposedChart data={data} margin={{ top: 12, right: 8, bottom: 22, left: 6 }}>
-            <CartesianGrid {...GRID} />
-            <XAxis
-              type="number"
-              dataKey="ms"
-              domain={[0, msEnd]}
-              ticks={tTicks}
-              tick={TICK}
-              axisLine={AXIS_LINE}
-              tickLine={AXIS_LINE}
-              tickFormatter={tickNumber}
-              label={{ value: 'Time (ms)', position: 'insideBottom', offset: -12, ...AXIS_LABEL }}
-            />
-            <YAxis
-              yAxisId="in"
-              type="number"
-              domain={[-inAxis.max, inAxis.max]}
-              ticks={inAxis.ticks}
-              tick={{ ...TICK, fill: COLORS.dcline }}
-              axisLine={AXIS_LINE}
-              tickLine={AXIS_LINE}
-              tickFormatter={tickNumber}
-              width={48}
-              label={{ value: 'Input (V)', angle: -90, position: 'insideLeft', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
-            />
-            <YAxis
-              yAxisId="out"
-              orientation="right"
-              type="number"
-              domain={[-outAxis.max, outAxis.max]}
-              ticks={outAxis.ticks}
-              tick={{ ...TICK, fill: COLORS.acline }}
-              axisLine={AXIS_LINE}
-              tickLine={AXIS_LINE}
-              tickFormatter={tickNumber}
-              width={62}
-              label={{ value: 'Output (V)', angle: 90, position: 'insideRight', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
-            />
-            <ReferenceLine yAxisId="in" y={0} stroke={COLORS.rule} />
-            <Line yAxisId="in" dataKey="input" type="monotone" stroke={COLORS.dcline} strokeWidth={1.75} dot={false} activeDot={false} isAnimationActive={false} />
-            <Line yAxisId="out" dataKey="output" type="monotone" stroke={COLORS.acline} strokeWidth={2.25} dot={false} activeDot={false} isAnimationActive={false} />
-          </ComposedChart>
-        </ResponsiveContainer>
-      </div>
-      <ChartLegend
-        className="mt-1"
-        entries={[
-          { label: 'Input (left axis)', color: COLORS.dcline, kind: 'line' },
-          { label: 'Output (right axis)', color: COLORS.acline, kind: 'thick' },
-        ]}
-      />
-    </figure>
+    <ChartFrame testId="waveform-chart" label="Input and output waveforms" stale={stale} height={height} footer={
+        <ChartLegend
+          className="mt-1"
+          entries={[
+            { label: 'Input (left axis)', color: COLORS.dcline, kind: 'line' },
+            { label: 'Output (right axis)', color: COLORS.acline, kind: 'thick' },
+          ]}
+        />
+      }>
+      <ComposedChart data={data} margin={{ top: 12, right: 8, bottom: 22, left: 6 }}>
+        <CartesianGrid {...GRID} />
+        <XAxis
+          type="number"
+          dataKey="ms"
+          domain={[0, msEnd]}
+          ticks={tTicks}
+          tick={TICK}
+          axisLine={AXIS_LINE}
+          tickLine={AXIS_LINE}
+          tickFormatter={tickNumber}
+          label={{ value: 'Time (ms)', position: 'insideBottom', offset: -12, ...AXIS_LABEL }}
+        />
+        <YAxis
+          yAxisId="in"
+          type="number"
+          domain={[-inAxis.max, inAxis.max]}
+          ticks={inAxis.ticks}
+          tick={{ ...TICK, fill: COLORS.dcline }}
+          axisLine={AXIS_LINE}
+          tickLine={AXIS_LINE}
+          tickFormatter={tickNumber}
+          width={48}
+          label={{ value: 'Input (V)', angle: -90, position: 'insideLeft', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
+        />
+        <YAxis
+          yAxisId="out"
+          orientation="right"
+          type="number"
+          domain={[-outAxis.max, outAxis.max]}
+          ticks={outAxis.ticks}
+          tick={{ ...TICK, fill: COLORS.acline }}
+          axisLine={AXIS_LINE}
+          tickLine={AXIS_LINE}
+          tickFormatter={tickNumber}
+          width={62}
+          label={{ value: 'Output (V)', angle: 90, position: 'insideRight', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }}
+        />
+        <ReferenceLine yAxisId="in" y={0} stroke={COLORS.rule} />
+        <Line yAxisId="in" dataKey="input" type="monotone" stroke={COLORS.dcline} strokeWidth={1.75} dot={false} activeDot={false} isAnimationActive={false} />
+        <Line yAxisId="out" dataKey="output" type="monotone" stroke={COLORS.acline} strokeWidth={2.25} dot={false} activeDot={false} isAnimationActive={false} />
+      </ComposedChart>
+    </ChartFrame>
   );
 }

@@ -1,24 +1,16 @@
 import type { Metadata } from 'next';
-import { notFound } from 'next/navigation';
 import { TubeDetailView } from '@/components/tubes/tube-detail';
-import { ApiError } from '@/lib/api/errors';
 import { can } from '@/lib/auth/policy';
 import { requirePageUser } from '@/lib/auth/session';
-import { getTube, tubePlot, type TubeDetail, type TubePlot } from '@/lib/db/tubes';
+import { tubePlot, type TubePlot } from '@/lib/db/tubes';
+import { loadTubeOr404 } from './_lib/load-tube';
 
 export const metadata: Metadata = { title: 'Tube type' };
 
 export default async function TubePage({ params }: { params: Promise<{ id: string }> }) {
   const user = await requirePageUser('tubes:read');
-  const id = Number((await params).id);
-  if (!Number.isInteger(id) || id <= 0) notFound();
-  let tube: TubeDetail;
-  try {
-    tube = await getTube(id);
-  } catch (err) {
-    if (err instanceof ApiError && err.code === 'not_found') notFound();
-    throw err;
-  }
+  const tube = await loadTubeOr404(params);
+  const id = tube.id;
   let plot: TubePlot | null = null;
   if (tube.defaultModel) plot = await tubePlot(id).catch(() => null);
   return (

@@ -1,0 +1,15 @@
+import { notFound } from 'next/navigation';
+import { ApiError } from '@/lib/api/errors';
+import { getTube, type TubeDetail } from '@/lib/db/tubes';
+
+// The tube type named by the route's id, or the 404 screen for a bad or unknown id.
+export async function loadTubeOr404(params: Promise<{ id: string }>): Promise<TubeDetail> {
+  const id = Number((await params).id);
+  if (!Number.isInteger(id) || id <= 0) notFound();
+  try {
+    return await getTube(id);
+  } catch (err) {
+    if (err instanceof ApiError && err.code === 'not_found') notFound();
+    throw err;
+  }
+}
