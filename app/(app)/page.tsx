@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { Caution } from '@/components/shell/caution';
 import { Card, CardBody, CardHeader, PageHeader } from '@/components/ui/card';
 import { requirePageUser } from '@/lib/auth/session';
-import { adminHome, designerHome, reviewerHome, technicianHome, type HomeItem } from '@/lib/db/home';
+import { adminHome, designerHome, reviewerHome, technicianHome, type HomeItem } from '@/lib/users/home';
 import { cn } from '@/lib/utils';
 
 const INTRO = {

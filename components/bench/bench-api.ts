@@ -1,4 +1,4 @@
-import type { BenchPhoto } from '@/lib/db/bench-checks';
+import type { BenchPhoto } from '@/lib/bench/service';
 
 export async function uploadPhoto(checkId: number, file: File): Promise<BenchPhoto> {
   const body = new FormData();

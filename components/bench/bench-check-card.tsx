@@ -5,7 +5,7 @@ import { StatusBadge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { METHOD_WORDS } from '@/lib/calc/bench';
-import type { BenchCheckDTO, BenchPhoto } from '@/lib/db/bench-checks';
+import type { BenchCheckDTO, BenchPhoto } from '@/lib/bench/service';
 import { cn, formatDateTime } from '@/lib/utils';
 import { fmt, fmtDeviation, fmtTolerance } from './bench-format';
 import { uploadPhoto } from './bench-api';

@@ -10,7 +10,7 @@ import { Button } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { Input, Select, Textarea } from '@/components/ui/input';
-import type { BenchCheckDTO, BenchContext, BenchPhoto } from '@/lib/db/bench-checks';
+import type { BenchCheckDTO, BenchContext, BenchPhoto } from '@/lib/bench/service';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import { formatDateTime } from '@/lib/utils';
 import { benchCheckSchema, type BenchCheckInput, type BenchCheckValues } from '@/lib/validation/bench';

@@ -6,7 +6,7 @@ import { Badge, StatusBadge } from '@/components/ui/badge';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Input } from '@/components/ui/input';
 import type { ChainResult, ChainStageResult } from '@/lib/calc/chain';
-import type { ProjectDetail } from '@/lib/db/projects';
+import type { ProjectDetail } from '@/lib/projects/service';
 import { fetchJson } from '@/lib/queries/fetch-json';
 import { LIMIT_WORDS } from '@/lib/report/labels';
 import { formatEng } from '@/lib/units';

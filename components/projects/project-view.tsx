@@ -11,7 +11,7 @@ import { Button, buttonVariants } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { Input, Textarea } from '@/components/ui/input';
-import type { ProjectDetail, StageDTO, WatcherOption } from '@/lib/db/projects';
+import type { ProjectDetail, StageDTO, WatcherOption } from '@/lib/projects/service';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import { TOPOLOGY_LABELS } from '@/lib/report/labels';
 import { formatEng } from '@/lib/units';

@@ -13,7 +13,7 @@ import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { DataTable } from '@/components/ui/data-table';
 import { Field } from '@/components/ui/field';
 import { Input, Select, Textarea } from '@/components/ui/input';
-import type { ProjectDetail, ProjectListRow } from '@/lib/db/projects';
+import type { ProjectDetail, ProjectListRow } from '@/lib/projects/service';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import { createProjectSchema, PROJECT_STATUSES, type CreateProjectInput } from '@/lib/validation/project';
 

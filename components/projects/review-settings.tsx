@@ -6,7 +6,7 @@ import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { Input, Select } from '@/components/ui/input';
 import { BENCH_QUANTITIES, DEFAULT_BENCH_TOLERANCE } from '@/lib/calc/bench';
-import type { ProjectDetail, WatcherOption } from '@/lib/db/projects';
+import type { ProjectDetail, WatcherOption } from '@/lib/projects/service';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import { benchTolerancesSchema, type BenchToleranceKey } from '@/lib/validation/project';
 

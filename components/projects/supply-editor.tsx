@@ -7,7 +7,7 @@ import { Button } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { Input } from '@/components/ui/input';
-import type { ProjectDetail } from '@/lib/db/projects';
+import type { ProjectDetail } from '@/lib/projects/service';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import { formatEng } from '@/lib/units';
 import { projectSupplySchema, type ProjectSupply, type ProjectSupplyInput } from '@/lib/validation/project';

@@ -11,7 +11,7 @@ import { Caution } from '@/components/shell/caution';
 import { Badge, StatusBadge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
 import { Card, CardHeader } from '@/components/ui/card';
-import type { TubeOption } from '@/lib/db/tubes';
+import type { TubeOption } from '@/lib/tubes/service';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import {
   conflictCurrent,

@@ -6,7 +6,7 @@ import { createContext, useContext } from 'react';
 import type { UseFormReturn } from 'react-hook-form';
 import { Field } from '@/components/ui/field';
 import { Input, Select } from '@/components/ui/input';
-import type { TubeOption } from '@/lib/db/tubes';
+import type { TubeOption } from '@/lib/tubes/service';
 import { BIAS_KINDS, FIELD_UNITS, TOPOLOGIES, sectionsFor, type FieldErrorMap, type StageFormValues } from '@/lib/stage-form';
 import type { Topology } from '@/lib/validation/stage';
 import type { SupplyNodeRecord } from '@/models/types';

@@ -4,7 +4,7 @@ import { useQueryClient } from '@tanstack/react-query';
 import { useRef, useState } from 'react';
 import { Button } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
-import type { TubeDetail } from '@/lib/db/tubes';
+import type { TubeDetail } from '@/lib/tubes/service';
 import { formatDateTime } from '@/lib/utils';
 import { MAX_ATTACHMENT_BYTES } from '@/lib/validation/tube';
 import { eng, tubeQueryKey } from './format';

@@ -8,7 +8,7 @@ import { gridLabel } from '@/components/charts/plate-curves-chart';
 import { Caution } from '@/components/shell/caution';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Select } from '@/components/ui/input';
-import type { CompareSeries, TubeOption } from '@/lib/db/tubes';
+import type { CompareSeries, TubeOption } from '@/lib/tubes/service';
 import { fetchJson } from '@/lib/queries/fetch-json';
 import { MODEL_KIND_LABELS } from '@/lib/validation/tube';
 import { eng } from './format';

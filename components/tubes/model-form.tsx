@@ -6,7 +6,7 @@ import { useForm } from 'react-hook-form';
 import { Button } from '@/components/ui/button';
 import { Field } from '@/components/ui/field';
 import { Input, Select } from '@/components/ui/input';
-import type { TubeDetail } from '@/lib/db/tubes';
+import type { TubeDetail } from '@/lib/tubes/service';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import { modelInputSchema, type ModelInput, type ModelValues } from '@/lib/validation/tube';
 

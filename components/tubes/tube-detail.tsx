@@ -10,7 +10,7 @@ import { Badge } from '@/components/ui/badge';
 import { Button, buttonVariants } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Select } from '@/components/ui/input';
-import type { ModelRow, TubeDetail, TubePlot } from '@/lib/db/tubes';
+import type { ModelRow, TubeDetail, TubePlot } from '@/lib/tubes/service';
 import { fetchJson } from '@/lib/queries/fetch-json';
 import { MODEL_KIND_LABELS, RATING_KEYS, RATING_META } from '@/lib/validation/tube';
 import { AttachmentsPanel } from './attachments-panel';

@@ -9,7 +9,7 @@ import { Button } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { Input, Select, Textarea } from '@/components/ui/input';
-import type { TubeDetail } from '@/lib/db/tubes';
+import type { TubeDetail } from '@/lib/tubes/service';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import { formatEng } from '@/lib/units';
 import { createTubeSchema, FAMILY_LABELS, RATING_KEYS, RATING_META, TUBE_FAMILIES } from '@/lib/validation/tube';

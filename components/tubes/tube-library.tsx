@@ -7,7 +7,7 @@ import { useState } from 'react';
 import { Badge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
 import { DataTable } from '@/components/ui/data-table';
-import type { TubeSummary } from '@/lib/db/tubes';
+import type { TubeSummary } from '@/lib/tubes/service';
 import { MODEL_KIND_LABELS } from '@/lib/validation/tube';
 import { eng, familyLabel, heaterText } from './format';
 

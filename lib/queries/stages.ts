@@ -8,7 +8,7 @@ import type { StageBody } from '@/lib/validation/stage';
 import { ApiRequestError, fetchJson } from './fetch-json';
 
 // Types only: erased at build time, so the server-only data layer is not pulled into the browser.
-import type { ProjectDetail, StageDTO } from '@/lib/db/projects';
+import type { ProjectDetail, StageDTO } from '@/lib/projects/service';
 
 export type { ProjectDetail, StageDTO };
 

@@ -4,8 +4,8 @@ import { existsSync } from 'node:fs';
 import { Circle, Document, Font, Line, Page, Polyline, StyleSheet, Svg, Text, View, renderToBuffer } from '@react-pdf/renderer';
 import type { ChainResult } from '@/lib/calc/chain';
 import type { StageAnalysis } from '@/lib/calc';
-import type { ProjectDetail } from '@/lib/db/projects';
-import type { StageDTO } from '@/lib/db/stages';
+import type { ProjectDetail } from '@/lib/projects/service';
+import type { StageDTO } from '@/lib/stages/service';
 import { formatEng } from '@/lib/units';
 import { inputRows, LIMIT_WORDS, TOPOLOGY_LABELS } from './labels';
 

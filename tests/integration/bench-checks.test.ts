@@ -6,7 +6,7 @@ import { POST as postPhoto } from '@/app/api/bench-checks/[id]/photos/route';
 import { GET as projectChecks } from '@/app/api/projects/[id]/bench-checks/route';
 import { GET as stageChecks, POST as recordCheck } from '@/app/api/stages/[id]/bench-checks/route';
 import { analyzeStage, type StageAnalysis } from '@/lib/calc';
-import { getEngineTube } from '@/lib/db/tubes';
+import { getEngineTube } from '@/lib/tubes/service';
 import { stageBodySchema, stageInputSchema } from '@/lib/validation/stage';
 import { AuditEvent, Project, Stage, TubeType, User } from '@/models';
 import { call } from '../support/api';

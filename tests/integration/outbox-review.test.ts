@@ -4,7 +4,7 @@ import { GET as outbox } from '@/app/api/admin/outbox/route';
 import { POST as decide } from '@/app/api/revisions/[id]/decision/route';
 import { POST as submit } from '@/app/api/projects/[id]/revisions/route';
 import { analyzeStage } from '@/lib/calc';
-import { getEngineTube } from '@/lib/db/tubes';
+import { getEngineTube } from '@/lib/tubes/service';
 import { deliverDueMail } from '@/lib/mail/outbox';
 import { stageBodySchema, stageInputSchema } from '@/lib/validation/stage';
 import { Decision, MailOutbox, Project, ProjectWatcher, Revision, Stage, TubeType, User } from '@/models';

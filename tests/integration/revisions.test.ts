@@ -10,7 +10,7 @@ import { GET as listForProject, POST as submit } from '@/app/api/projects/[id]/r
 import { PATCH as patchStage } from '@/app/api/stages/[id]/route';
 import { analyzeStage } from '@/lib/calc';
 import { sequelize } from '@/lib/db';
-import { getEngineTube } from '@/lib/db/tubes';
+import { getEngineTube } from '@/lib/tubes/service';
 import { revisionHash } from '@/lib/review/content';
 import { stageBodySchema, stageInputSchema } from '@/lib/validation/stage';
 import { AuditEvent, Decision, MailOutbox, Project, Revision, Stage, TubeType, User } from '@/models';

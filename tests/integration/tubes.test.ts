@@ -10,7 +10,7 @@ import { GET as compareRoute } from '@/app/api/tubes/compare/route';
 import { GET as optionsRoute } from '@/app/api/tubes/options/route';
 import { korenTriodeCurrent } from '@/lib/calc';
 import { ApiError } from '@/lib/api/errors';
-import { getEngineTube, listTubeOptions } from '@/lib/db/tubes';
+import { getEngineTube, listTubeOptions } from '@/lib/tubes/service';
 import { tubeSchema } from '@/lib/validation/stage';
 import { AuditEvent, TubeModel, TubeType } from '@/models';
 import { call } from '../support/api';

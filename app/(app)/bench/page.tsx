@@ -5,7 +5,7 @@ import { PageHeader } from '@/components/ui/card';
 import { ApiError } from '@/lib/api/errors';
 import { can } from '@/lib/auth/policy';
 import { requirePageUser } from '@/lib/auth/session';
-import { benchContext, benchPickerOptions, listBenchChecks } from '@/lib/db/bench-checks';
+import { benchContext, benchPickerOptions, listBenchChecks } from '@/lib/bench/service';
 
 export const metadata: Metadata = { title: 'Bench' };
 export const dynamic = 'force-dynamic';

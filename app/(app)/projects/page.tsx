@@ -3,7 +3,7 @@ import { ProjectsList } from '@/components/projects/projects-list';
 import { PageHeader } from '@/components/ui/card';
 import { can } from '@/lib/auth/policy';
 import { requirePageUser } from '@/lib/auth/session';
-import { listProjects } from '@/lib/db/projects';
+import { listProjects } from '@/lib/projects/service';
 
 export const metadata: Metadata = { title: 'Projects' };
 

@@ -3,7 +3,7 @@ import Link from 'next/link';
 import { StatusBadge } from '@/components/ui/badge';
 import { Card, CardHeader, PageHeader } from '@/components/ui/card';
 import { requirePageUser } from '@/lib/auth/session';
-import { listRevisions, type RevisionSummary } from '@/lib/db/revisions';
+import { listRevisions, type RevisionSummary } from '@/lib/review/service';
 import { formatDateTime } from '@/lib/utils';
 
 export const metadata: Metadata = { title: 'Reviews' };

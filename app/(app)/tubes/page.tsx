@@ -5,7 +5,7 @@ import { buttonVariants } from '@/components/ui/button';
 import { PageHeader } from '@/components/ui/card';
 import { can } from '@/lib/auth/policy';
 import { requirePageUser } from '@/lib/auth/session';
-import { listTubes } from '@/lib/db/tubes';
+import { listTubes } from '@/lib/tubes/service';
 
 export const metadata: Metadata = { title: 'Tube library' };
 

@@ -4,7 +4,7 @@ import { z } from 'zod';
 import { ApiError } from '@/lib/api/errors';
 import { parseBody, withUser } from '@/lib/api/with-user';
 import { analyzeStage } from '@/lib/calc';
-import { engineInputFor } from '@/lib/db/stages';
+import { engineInputFor } from '@/lib/stages/service';
 import { stageBodySchema, stageInputSchema } from '@/lib/validation/stage';
 
 const tubeModelIdSchema = z.object({ tubeModelId: z.number().int().positive().nullable().optional() });

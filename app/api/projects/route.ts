@@ -1,7 +1,7 @@
 // GET /api/projects – the team's projects (search, status, archived filters); POST – create a project
 import { NextResponse } from 'next/server';
 import { parseBody, parseQuery, withUser } from '@/lib/api/with-user';
-import { createProject, listProjects } from '@/lib/db/projects';
+import { createProject, listProjects } from '@/lib/projects/service';
 import { createProjectSchema, listProjectsQuerySchema } from '@/lib/validation/project';
 
 export const GET = withUser('projects:read', async (req) => {

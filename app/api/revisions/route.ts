@@ -1,7 +1,7 @@
 // GET /api/revisions – revisions waiting for a decision and past decisions (?state=, ?projectId=)
 import { NextResponse } from 'next/server';
 import { parseQuery, withUser } from '@/lib/api/with-user';
-import { listRevisions } from '@/lib/db/revisions';
+import { listRevisions } from '@/lib/review/service';
 import { revisionListQuerySchema } from '@/lib/validation/review';
 
 export const GET = withUser('reviews:read', async (req) => {

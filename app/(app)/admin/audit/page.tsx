@@ -3,7 +3,7 @@ import { Button } from '@/components/ui/button';
 import { Card, PageHeader } from '@/components/ui/card';
 import { Input, Select } from '@/components/ui/input';
 import { requirePageUser } from '@/lib/auth/session';
-import { auditFilterOptions, auditQuerySchema, listAudit } from '@/lib/db/audit-log';
+import { auditFilterOptions, auditQuerySchema, listAudit } from '@/lib/audit/log';
 import { formatDateTime } from '@/lib/utils';
 
 export const metadata: Metadata = { title: 'Audit log' };

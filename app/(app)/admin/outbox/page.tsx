@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import { StatusBadge } from '@/components/ui/badge';
 import { Card, CardBody, CardHeader, PageHeader } from '@/components/ui/card';
 import { requirePageUser } from '@/lib/auth/session';
-import { listOutbox, listSinkMessages } from '@/lib/db/outbox';
+import { listOutbox, listSinkMessages } from '@/lib/mail/outbox-view';
 import { formatDateTime } from '@/lib/utils';
 
 export const metadata: Metadata = { title: 'Outbox' };

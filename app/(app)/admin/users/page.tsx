@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import { UsersAdmin } from '@/components/admin/users-admin';
 import { PageHeader } from '@/components/ui/card';
 import { requirePageUser } from '@/lib/auth/session';
-import { listUsers } from '@/lib/db/users';
+import { listUsers } from '@/lib/users/service';
 
 export const metadata: Metadata = { title: 'Users' };
 

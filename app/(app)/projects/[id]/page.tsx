@@ -4,7 +4,7 @@ import { ProjectView } from '@/components/projects/project-view';
 import { ApiError } from '@/lib/api/errors';
 import { can } from '@/lib/auth/policy';
 import { requirePageUser } from '@/lib/auth/session';
-import { getProject, listWatcherOptions, type ProjectDetail } from '@/lib/db/projects';
+import { getProject, listWatcherOptions, type ProjectDetail } from '@/lib/projects/service';
 
 export const metadata: Metadata = { title: 'Project' };
 

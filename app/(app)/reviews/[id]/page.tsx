@@ -9,7 +9,7 @@ import { StatusBadge } from '@/components/ui/badge';
 import { Card, CardBody, CardHeader, PageHeader } from '@/components/ui/card';
 import { ApiError } from '@/lib/api/errors';
 import { requirePageUser } from '@/lib/auth/session';
-import { decisionBlocker, getRevision } from '@/lib/db/revisions';
+import { decisionBlocker, getRevision } from '@/lib/review/service';
 import { formatDateTime } from '@/lib/utils';
 
 export const metadata: Metadata = { title: 'Revision' };

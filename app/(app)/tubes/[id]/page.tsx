@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import { TubeDetailView } from '@/components/tubes/tube-detail';
 import { can } from '@/lib/auth/policy';
 import { requirePageUser } from '@/lib/auth/session';
-import { tubePlot, type TubePlot } from '@/lib/db/tubes';
+import { tubePlot, type TubePlot } from '@/lib/tubes/service';
 import { loadTubeOr404 } from './_lib/load-tube';
 
 export const metadata: Metadata = { title: 'Tube type' };

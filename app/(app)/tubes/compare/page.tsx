@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import { CompareView } from '@/components/tubes/compare-view';
 import { PageHeader } from '@/components/ui/card';
 import { requirePageUser } from '@/lib/auth/session';
-import { listTubeOptions } from '@/lib/db/tubes';
+import { listTubeOptions } from '@/lib/tubes/service';
 
 export const metadata: Metadata = { title: 'Compare tube types' };
 

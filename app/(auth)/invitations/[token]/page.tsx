@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import Link from 'next/link';
 import { AcceptInvitationForm } from '@/components/auth/accept-invitation-form';
 import { Card, CardBody } from '@/components/ui/card';
-import { findInvitation } from '@/lib/db/users';
+import { findInvitation } from '@/lib/users/service';
 
 export const metadata: Metadata = { title: 'Set your password' };
 

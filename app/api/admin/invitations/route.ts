@@ -1,7 +1,7 @@
 // POST /api/admin/invitations – invite a person by e-mail with a role (409 if the address has an account)
 import { NextResponse } from 'next/server';
 import { parseBody, withUser } from '@/lib/api/with-user';
-import { inviteUser } from '@/lib/db/users';
+import { inviteUser } from '@/lib/users/service';
 import { inviteSchema } from '@/lib/validation/auth';
 
 export const POST = withUser('users:manage', async (req, { user }) => {

@@ -1,6 +1,6 @@
 // GET /api/attachments/{id} – download an attachment (datasheet PDF) from object storage
 import { parseParams, withUser } from '@/lib/api/with-user';
-import { attachmentFile } from '@/lib/db/attachments';
+import { attachmentFile } from '@/lib/tubes/attachments';
 import { tubeIdParamSchema } from '@/lib/validation/tube';
 
 export const GET = withUser('tubes:read', async (_req, { params }) => {

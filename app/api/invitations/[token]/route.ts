@@ -1,7 +1,7 @@
 // GET /api/invitations/{token} – public: is this invitation link still usable?
 import { NextResponse } from 'next/server';
 import { toErrorResponse } from '@/lib/api/errors';
-import { findInvitation } from '@/lib/db/users';
+import { findInvitation } from '@/lib/users/service';
 
 export async function GET(_req: Request, ctx: { params: Promise<{ token: string }> }) {
   try {

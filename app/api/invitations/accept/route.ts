@@ -2,7 +2,7 @@
 import { NextResponse, type NextRequest } from 'next/server';
 import { toErrorResponse } from '@/lib/api/errors';
 import { parseBody } from '@/lib/api/with-user';
-import { acceptInvitation } from '@/lib/db/users';
+import { acceptInvitation } from '@/lib/users/service';
 import { acceptInvitationSchema } from '@/lib/validation/auth';
 
 export async function POST(req: NextRequest) {

@@ -1,7 +1,7 @@
 // GET /api/projects/{id} – the project with its stages and their latest analyses; PATCH – edit (with version); DELETE – archive
 import { NextResponse } from 'next/server';
 import { parseBody, parseParams, withUser } from '@/lib/api/with-user';
-import { archiveProject, getProject, updateProject } from '@/lib/db/projects';
+import { archiveProject, getProject, updateProject } from '@/lib/projects/service';
 import { idParamSchema } from '@/lib/validation/auth';
 import { updateProjectSchema } from '@/lib/validation/project';
 

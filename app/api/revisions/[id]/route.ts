@@ -2,7 +2,7 @@
 // DELETE /api/revisions/{id} – withdraw a revision nobody has decided on yet (approved ones are permanent)
 import { NextResponse } from 'next/server';
 import { parseParams, withUser } from '@/lib/api/with-user';
-import { decisionBlocker, getRevision, withdrawRevision } from '@/lib/db/revisions';
+import { decisionBlocker, getRevision, withdrawRevision } from '@/lib/review/service';
 import { idParamSchema } from '@/lib/validation/auth';
 
 export const GET = withUser('reviews:read', async (_req, { user, params }) => {

@@ -1,7 +1,7 @@
 // GET /api/stages/{id} – one stage; PATCH – edit with the version last read (stale → 409 with the current stage); DELETE ?version=N
 import { NextResponse } from 'next/server';
 import { parseBody, parseParams, parseQuery, withUser } from '@/lib/api/with-user';
-import { deleteStage, getStage, updateStage } from '@/lib/db/stages';
+import { deleteStage, getStage, updateStage } from '@/lib/stages/service';
 import { idParamSchema } from '@/lib/validation/auth';
 import { deleteStageQuerySchema, updateStageSchema } from '@/lib/validation/project';
 

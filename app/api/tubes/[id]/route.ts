@@ -1,7 +1,7 @@
 // GET /api/tubes/{id} – a type with ratings, models, curve sets and attachments; PATCH edits or retires it
 import { NextResponse } from 'next/server';
 import { parseBody, parseParams, withUser } from '@/lib/api/with-user';
-import { getTube, updateTube } from '@/lib/db/tubes';
+import { getTube, updateTube } from '@/lib/tubes/service';
 import { tubeIdParamSchema, updateTubeSchema } from '@/lib/validation/tube';
 
 export const GET = withUser('tubes:read', async (_req, { params }) => {

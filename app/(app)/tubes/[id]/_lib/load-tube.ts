@@ -1,6 +1,6 @@
 import { notFound } from 'next/navigation';
 import { ApiError } from '@/lib/api/errors';
-import { getTube, type TubeDetail } from '@/lib/db/tubes';
+import { getTube, type TubeDetail } from '@/lib/tubes/service';
 
 // The tube type named by the route's id, or the 404 screen for a bad or unknown id.
 export async function loadTubeOr404(params: Promise<{ id: string }>): Promise<TubeDetail> {

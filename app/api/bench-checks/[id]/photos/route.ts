@@ -2,7 +2,7 @@
 import { NextResponse } from 'next/server';
 import { ApiError } from '@/lib/api/errors';
 import { parseParams, withUser } from '@/lib/api/with-user';
-import { addBenchPhoto } from '@/lib/db/bench-checks';
+import { addBenchPhoto } from '@/lib/bench/service';
 import { idParamSchema } from '@/lib/validation/auth';
 
 export const POST = withUser('bench:write', async (req, { user, params }) => {

@@ -1,7 +1,7 @@
 // POST /api/curve-sets/{id}/discard – discard a proposed fit (latest when no fitId)
 import { NextResponse } from 'next/server';
 import { parseBody, parseParams, withUser } from '@/lib/api/with-user';
-import { discardFit } from '@/lib/db/curve-sets';
+import { discardFit } from '@/lib/curves/service';
 import { discardFitBodySchema, tubeIdParamSchema } from '@/lib/validation/tube';
 
 export const POST = withUser('tubes:write', async (req, { user, params }) => {

@@ -1,6 +1,6 @@
 // GET /api/curve-sets/{id}/file – the uploaded CSV exactly as stored
 import { parseParams, withUser } from '@/lib/api/with-user';
-import { curveSetFile } from '@/lib/db/curve-sets';
+import { curveSetFile } from '@/lib/curves/service';
 import { tubeIdParamSchema } from '@/lib/validation/tube';
 
 export const GET = withUser('tubes:read', async (_req, { params }) => {

@@ -1,7 +1,7 @@
 // POST /api/curve-sets/{id}/fit – fit Koren parameters (Levenberg–Marquardt) and store the result as a proposed fit
 import { NextResponse } from 'next/server';
 import { parseBody, parseParams, withUser } from '@/lib/api/with-user';
-import { runFit } from '@/lib/db/curve-sets';
+import { runFit } from '@/lib/curves/service';
 import { fitRequestSchema } from '@/lib/validation/curve-set';
 import { tubeIdParamSchema } from '@/lib/validation/tube';
 

@@ -2,7 +2,7 @@
 import { NextResponse } from 'next/server';
 import { parseParams, parseQuery, withUser } from '@/lib/api/with-user';
 import { solveChain } from '@/lib/calc/chain';
-import { chainStagesFor, getProject } from '@/lib/db/projects';
+import { chainStagesFor, getProject } from '@/lib/projects/service';
 import { idParamSchema } from '@/lib/validation/auth';
 import { chainQuerySchema } from '@/lib/validation/project';
 

@@ -1,7 +1,7 @@
 // GET /api/projects/{id}/report – the design report PDF (stages, inputs, results, ratings, plots, chain and supply)
 import { parseParams, withUser } from '@/lib/api/with-user';
 import { solveChain } from '@/lib/calc/chain';
-import { chainStagesFor, getProject } from '@/lib/db/projects';
+import { chainStagesFor, getProject } from '@/lib/projects/service';
 import { renderProjectReportPdf } from '@/lib/report/project-report';
 import { idParamSchema } from '@/lib/validation/auth';
 

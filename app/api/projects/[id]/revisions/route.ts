@@ -2,8 +2,8 @@
 // POST /api/projects/{id}/revisions – submit the project for review: freezes a hash-stamped revision
 import { NextResponse } from 'next/server';
 import { parseBody, parseParams, withUser } from '@/lib/api/with-user';
-import { assertProjectExists } from '@/lib/db/bench-checks';
-import { listRevisions, submitRevision } from '@/lib/db/revisions';
+import { assertProjectExists } from '@/lib/bench/service';
+import { listRevisions, submitRevision } from '@/lib/review/service';
 import { idParamSchema } from '@/lib/validation/auth';
 import { submitRevisionSchema } from '@/lib/validation/review';
 

@@ -1,7 +1,7 @@
 // POST /api/projects/{id}/stages – add a stage (analysed with its library tube; an engine error is stored, not refused)
 import { NextResponse } from 'next/server';
 import { parseBody, parseParams, withUser } from '@/lib/api/with-user';
-import { createStage } from '@/lib/db/stages';
+import { createStage } from '@/lib/stages/service';
 import { idParamSchema } from '@/lib/validation/auth';
 import { createStageSchema } from '@/lib/validation/project';
 

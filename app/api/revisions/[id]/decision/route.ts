@@ -1,7 +1,7 @@
 // POST /api/revisions/{id}/decision – approve or request changes; mails the designer and the watchers the summary and PDF
 import { NextResponse } from 'next/server';
 import { parseBody, parseParams, withUser } from '@/lib/api/with-user';
-import { decideRevision } from '@/lib/db/revisions';
+import { decideRevision } from '@/lib/review/service';
 import { idParamSchema } from '@/lib/validation/auth';
 import { decisionSchema } from '@/lib/validation/review';
 

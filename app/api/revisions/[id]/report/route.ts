@@ -1,6 +1,6 @@
 // GET /api/revisions/{id}/report – the revision's PDF report, rendered from its frozen snapshot
 import { parseParams, withUser } from '@/lib/api/with-user';
-import { revisionPdf } from '@/lib/db/revisions';
+import { revisionPdf } from '@/lib/review/service';
 import { idParamSchema } from '@/lib/validation/auth';
 
 export const GET = withUser('reviews:read', async (_req, { params }) => {

@@ -2,7 +2,7 @@
 // POST /api/stages/{id}/bench-checks – record bench readings; answers the verdict and each quantity's comparison
 import { NextResponse } from 'next/server';
 import { parseBody, parseParams, parseQuery, withUser } from '@/lib/api/with-user';
-import { benchContext, listBenchChecks, recordBenchCheck } from '@/lib/db/bench-checks';
+import { benchContext, listBenchChecks, recordBenchCheck } from '@/lib/bench/service';
 import { idParamSchema } from '@/lib/validation/auth';
 import { benchCheckSchema, benchListQuerySchema } from '@/lib/validation/bench';
 

@@ -1,7 +1,7 @@
 // GET /api/stages/{id}/curves?kind=plate|transfer|response|waveform – CSV of a plotted curve of the stage's stored analysis
 import { ApiError } from '@/lib/api/errors';
 import { parseParams, parseQuery, withUser } from '@/lib/api/with-user';
-import { getStage } from '@/lib/db/stages';
+import { getStage } from '@/lib/stages/service';
 import { curvesCsv } from '@/lib/report/curves-csv';
 import { idParamSchema } from '@/lib/validation/auth';
 import { curvesQuerySchema } from '@/lib/validation/project';

@@ -1,8 +1,8 @@
 // POST /api/tubes/{id}/attachments – attach a datasheet PDF (multipart: file, kind?)
 import { NextResponse } from 'next/server';
 import { parseParams, withUser } from '@/lib/api/with-user';
-import { attachDatasheet } from '@/lib/db/attachments';
-import { readUpload } from '@/lib/db/curve-sets';
+import { attachDatasheet } from '@/lib/tubes/attachments';
+import { readUpload } from '@/lib/curves/service';
 import { tubeIdParamSchema } from '@/lib/validation/tube';
 
 export const POST = withUser('tubes:write', async (req, { user, params }) => {

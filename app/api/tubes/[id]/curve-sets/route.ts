@@ -1,8 +1,8 @@
 // POST /api/tubes/{id}/curve-sets – upload a measured curve set (multipart: file, currentUnit mA|A, name?, notes?); GET lists them
 import { NextResponse } from 'next/server';
 import { parseParams, withUser } from '@/lib/api/with-user';
-import { readUpload, uploadCurveSet } from '@/lib/db/curve-sets';
-import { getTube } from '@/lib/db/tubes';
+import { readUpload, uploadCurveSet } from '@/lib/curves/service';
+import { getTube } from '@/lib/tubes/service';
 import { tubeIdParamSchema } from '@/lib/validation/tube';
 
 export const GET = withUser('tubes:read', async (_req, { params }) => {

@@ -2,7 +2,7 @@
 import { NextResponse } from 'next/server';
 import { z } from 'zod';
 import { parseParams, parseQuery, withUser } from '@/lib/api/with-user';
-import { tubePlot } from '@/lib/db/tubes';
+import { tubePlot } from '@/lib/tubes/service';
 import { quantity } from '@/lib/validation/quantity';
 import { tubeIdParamSchema } from '@/lib/validation/tube';
 

@@ -4,9 +4,9 @@ import { StageEditor } from '@/components/stage-editor/stage-editor';
 import { ApiError } from '@/lib/api/errors';
 import { can } from '@/lib/auth/policy';
 import { requirePageUser } from '@/lib/auth/session';
-import { getProject } from '@/lib/db/projects';
-import { getStage } from '@/lib/db/stages';
-import { listTubeOptions } from '@/lib/db/tubes';
+import { getProject } from '@/lib/projects/service';
+import { getStage } from '@/lib/stages/service';
+import { listTubeOptions } from '@/lib/tubes/service';
 
 export const metadata: Metadata = { title: 'Stage editor' };
 

@@ -3,8 +3,8 @@ import { notFound } from 'next/navigation';
 import { StageEditor } from '@/components/stage-editor/stage-editor';
 import { ApiError } from '@/lib/api/errors';
 import { requirePageUser } from '@/lib/auth/session';
-import { getProject } from '@/lib/db/projects';
-import { listTubeOptions } from '@/lib/db/tubes';
+import { getProject } from '@/lib/projects/service';
+import { listTubeOptions } from '@/lib/tubes/service';
 
 export const metadata: Metadata = { title: 'New stage' };
 

@@ -1,6 +1,6 @@
 // GET /api/bench-checks/{id}/photos/{photoId} – the photo itself, from object storage
 import { parseParams, withUser } from '@/lib/api/with-user';
-import { benchPhotoFile } from '@/lib/db/bench-checks';
+import { benchPhotoFile } from '@/lib/bench/service';
 import { photoParamSchema } from '@/lib/validation/bench';
 
 export const GET = withUser('projects:read', async (_req, { params }) => {

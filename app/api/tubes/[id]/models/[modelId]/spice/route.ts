@@ -1,6 +1,6 @@
 // GET /api/tubes/{id}/models/{modelId}/spice – the model as a SPICE subcircuit include file
 import { parseParams, withUser } from '@/lib/api/with-user';
-import { spiceModelFile } from '@/lib/db/tubes';
+import { spiceModelFile } from '@/lib/tubes/service';
 import { tubeModelParamSchema } from '@/lib/validation/tube';
 
 export const GET = withUser('tubes:read', async (_req, { params }) => {

@@ -1,6 +1,6 @@
 import 'server-only';
 import { QueryTypes } from 'sequelize';
-import { sequelize } from './index';
+import { sequelize } from '@/lib/db';
 
 type Row = Record<string, unknown>;
 const q = <T extends Row>(sql: string, replacements: Record<string, unknown> = {}) =>

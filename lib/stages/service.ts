@@ -6,9 +6,9 @@ import { stageBodySchema, stageInputSchema, type StageBody } from '@/lib/validat
 import type { CreateStageInput, UpdateStageInput } from '@/lib/validation/project';
 import { createStageSchema, updateStageSchema } from '@/lib/validation/project';
 import { Project, Stage, TubeType } from '@/models';
-import { recordAudit } from './audit';
-import { sequelize } from './index';
-import { getEngineTube } from './tubes';
+import { recordAudit } from '@/lib/db/audit';
+import { sequelize } from '@/lib/db';
+import { getEngineTube } from '@/lib/tubes/service';
 
 export type StageDTO = {
   id: number;

@@ -9,9 +9,9 @@ import { MAX_UPLOAD_BYTES, validateUpload } from '@/lib/curves/validate-upload';
 import { getObject, objectKey, putObject } from '@/lib/storage/s3';
 import { curveUploadFieldsSchema, type FitModel } from '@/lib/validation/curve-set';
 import { CurveFit, CurvePoint, CurveSet, TubeType } from '@/models';
-import { recordAudit } from './audit';
-import { sequelize } from './index';
-import { assertMayEdit, createModelRow, lockTube, toCurveSetRow, toFitRow, toModelRow, type CurveSetRow, type FitRow, type ModelRow } from './tubes';
+import { recordAudit } from '@/lib/db/audit';
+import { sequelize } from '@/lib/db';
+import { assertMayEdit, createModelRow, lockTube, toCurveSetRow, toFitRow, toModelRow, type CurveSetRow, type FitRow, type ModelRow } from '@/lib/tubes/service';
 
 export type CsvIssue = { line: number | null; column: string | null; message: string };
 

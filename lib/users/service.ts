@@ -9,8 +9,8 @@ import { invitationMail } from '@/lib/mail/templates';
 import type { InviteInput, UpdateUserInput } from '@/lib/validation/auth';
 import { inviteSchema } from '@/lib/validation/auth';
 import { Invitation, User, type Role } from '@/models';
-import { recordAudit } from './audit';
-import { sequelize } from './index';
+import { recordAudit } from '@/lib/db/audit';
+import { sequelize } from '@/lib/db';
 
 export const INVITATION_TTL_MS = 48 * 60 * 60 * 1000;
 

@@ -18,8 +18,8 @@ import {
 import { getObject, objectKey, putObject } from '@/lib/storage/s3';
 import { benchCheckSchema, benchListQuerySchema, MAX_PHOTO_BYTES, PHOTO_TYPES, type BenchCheckInput, type BenchListQuery } from '@/lib/validation/bench';
 import { Attachment, BenchCheck, Project, Stage, TubeType } from '@/models';
-import { recordAudit } from './audit';
-import { sequelize } from './index';
+import { recordAudit } from '@/lib/db/audit';
+import { sequelize } from '@/lib/db';
 
 export type BenchPhoto = { id: number; fileName: string; contentType: string; byteSize: number; url: string };
 

@@ -4,9 +4,9 @@ import type { CurrentUser } from '@/lib/auth/session';
 import { getObject, objectKey, putObject } from '@/lib/storage/s3';
 import { attachmentFieldsSchema, MAX_ATTACHMENT_BYTES } from '@/lib/validation/tube';
 import { Attachment } from '@/models';
-import { recordAudit } from './audit';
-import { sequelize } from './index';
-import { lockTube, toAttachmentRow, type AttachmentRow } from './tubes';
+import { recordAudit } from '@/lib/db/audit';
+import { sequelize } from '@/lib/db';
+import { lockTube, toAttachmentRow, type AttachmentRow } from '@/lib/tubes/service';
 
 const PDF_MAGIC = Buffer.from('%PDF-');
 

@@ -13,9 +13,9 @@ import { toPlainJson } from '@/lib/review/hash';
 import type { RevisionSnapshot } from '@/lib/review/types';
 import { decisionSchema, submitRevisionSchema, type DecisionInput, type SubmitRevisionInput } from '@/lib/validation/review';
 import { Decision, Project, ProjectWatcher, Revision, User, type MailAttachmentRecord } from '@/models';
-import { recordAudit } from './audit';
-import { sequelize } from './index';
-import { getProject, type ProjectDetail } from './projects';
+import { recordAudit } from '@/lib/db/audit';
+import { sequelize } from '@/lib/db';
+import { getProject, type ProjectDetail } from '@/lib/projects/service';
 
 export type RevisionState = 'submitted' | 'approved' | 'changes-requested';
 

@@ -1,7 +1,7 @@
 import 'server-only';
 import { QueryTypes } from 'sequelize';
 import { z } from 'zod';
-import { sequelize } from './index';
+import { sequelize } from '@/lib/db';
 
 export const auditQuerySchema = z.object({
   projectId: z.coerce.number().int().positive().optional(),

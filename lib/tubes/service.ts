@@ -20,8 +20,8 @@ import {
 import { Attachment, CurveFit, CurveSet, TubeModel, TubeType, User } from '@/models';
 import type { TubeCapacitancesRecord, TubeHeater, TubeRatingsRecord, TypicalPoint } from '@/models/types';
 import { engineTubeFrom } from '@/lib/tubes/engine-tube';
-import { recordAudit } from './audit';
-import { sequelize } from './index';
+import { recordAudit } from '@/lib/db/audit';
+import { sequelize } from '@/lib/db';
 
 export type Family = TubeType['family'];
 export type ModelRow = {

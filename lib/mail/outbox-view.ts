@@ -1,7 +1,7 @@
 import 'server-only';
 import { env } from '@/lib/env';
 import { MailOutbox } from '@/models';
-import './index';
+import '@/lib/db';
 
 export type OutboxRow = {
   id: number;

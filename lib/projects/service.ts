@@ -14,11 +14,11 @@ import {
 import { Project, ProjectWatcher, Stage, TubeType, User } from '@/models';
 import type { ProjectSupplyRecord } from '@/models/types';
 import type { Role } from '@/models/user';
-import { recordAudit } from './audit';
-import { sequelize } from './index';
-import { engineInputFor, stageDTOs, type StageDTO } from './stages';
+import { recordAudit } from '@/lib/db/audit';
+import { sequelize } from '@/lib/db';
+import { engineInputFor, stageDTOs, type StageDTO } from '@/lib/stages/service';
 
-export type { StageDTO } from './stages';
+export type { StageDTO } from '@/lib/stages/service';
 
 export type ProjectDetail = {
   id: number;
