@@ -8,7 +8,7 @@
 import { CalcError } from './errors';
 import { analyzeStage } from './index';
 import type { HeadroomLimit, StageAnalysis } from './types';
-import type { StageInput } from '../validation/stage';
+import type { StageInput } from './input';
 
 export type ChainSupplyNode = { key: string; name: string; droppingResistor: number; filterCapacitor: number };
 export type ChainSupply = {

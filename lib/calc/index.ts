@@ -1,4 +1,4 @@
-import type { StageInput } from '../validation/stage';
+import type { StageInput } from './input';
 import { CalcError } from './errors';
 import { analyzeCathodeFollower } from './stages/cathode-follower';
 import { analyzeCommonCathode } from './stages/common-cathode';
@@ -10,7 +10,7 @@ import type { StageAnalysis } from './types';
 export { CalcError } from './errors';
 export type { CalcErrorCode } from './errors';
 export type * from './types';
-export type { StageInput, Tube } from '../validation/stage';
+export type { StageInput, Tube } from './input';
 export { plateCurveFamily, transferCurve, paMaxCurve } from './plot';
 export type { CurveFamilyOptions, TransferOptions } from './plot';
 export { tubeModel, tubeDerivatives } from './models/registry';

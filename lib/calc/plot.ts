@@ -1,4 +1,4 @@
-import type { Tube } from '../validation/stage';
+import type { Tube } from './input';
 import { tubeModel, type TubeModel } from './models/registry';
 import type { CurvePoint, PlateCurve, TransferPoint } from './types';
 

@@ -1,4 +1,4 @@
-import type { StageInput, Tube } from '../validation/stage';
+import type { StageInput, Tube } from './input';
 import { defaultRgi } from './models/registry';
 
 // Pure text generation: nothing here runs ngspice.

@@ -1,4 +1,4 @@
-import type { Tube } from '../../validation/stage';
+import type { Tube } from '../input';
 import { threeHalvesTriodeCurrent, threeHalvesTriodeCurrentD } from './child-langmuir';
 import { gridCurrent, gridCurrentD } from './grid-current';
 import {

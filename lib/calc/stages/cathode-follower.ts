@@ -1,4 +1,4 @@
-import type { CathodeFollowerInput } from '../../validation/stage';
+import type { CathodeFollowerInput } from '../input';
 import { CalcError } from '../errors';
 import { tubeModel } from '../models/registry';
 import type { StageAnalysis } from '../types';

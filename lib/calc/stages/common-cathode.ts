@@ -1,4 +1,4 @@
-import type { CommonCathodeInput } from '../../validation/stage';
+import type { CommonCathodeInput } from '../input';
 import { CalcError } from '../errors';
 import { tubeModel } from '../models/registry';
 import type { StageAnalysis } from '../types';

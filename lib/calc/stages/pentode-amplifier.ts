@@ -1,4 +1,4 @@
-import type { PentodeAmplifierInput, Screen } from '../../validation/stage';
+import type { PentodeAmplifierInput, Screen } from '../input';
 import { tubeModel } from '../models/registry';
 import type { StageAnalysis } from '../types';
 import { cathodeBiasParts, parallel } from './common-cathode';

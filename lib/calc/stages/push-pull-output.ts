@@ -1,4 +1,4 @@
-import type { PushPullOutputInput } from '../../validation/stage';
+import type { PushPullOutputInput } from '../input';
 import { fivePoint, harmonicAmplitudes, thdFromAmplitudes, threePoint } from '../distortion';
 import { CalcError } from '../errors';
 import { tubeDerivatives, tubeModel, type TubeModel } from '../models/registry';

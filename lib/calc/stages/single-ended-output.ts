@@ -1,4 +1,4 @@
-import type { SingleEndedOutputInput } from '../../validation/stage';
+import type { SingleEndedOutputInput } from '../input';
 import { CalcError } from '../errors';
 import { tubeModel } from '../models/registry';
 import type { StageAnalysis } from '../types';

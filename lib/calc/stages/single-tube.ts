@@ -1,4 +1,4 @@
-import type { Tube } from '../../validation/stage';
+import type { Tube } from '../input';
 import { harmonicAmplitudes, fivePoint, thdFromAmplitudes, threePoint } from '../distortion';
 import { CalcError } from '../errors';
 import { tubeDerivatives, type TubeModel } from '../models/registry';

@@ -1,0 +1,226 @@
+import { z } from 'zod';
+import { quantity } from '../validation/quantity';
+
+const ohms = (o: { positive?: boolean } = { positive: true }) =>
+  o.positive ? quantity('Ω', { positive: true }) : quantity('Ω', { min: 0 });
+const farads = () => quantity('F', { positive: true });
+const volts = () => quantity('V');
+const positiveVolts = () => quantity('V', { positive: true });
+
+export const capacitancesSchema = z.object({
+  cgk: quantity('F', { min: 0 }),
+  cga: quantity('F', { min: 0 }),
+  cak: quantity('F', { min: 0 }),
+});
+
+export const tubeRatingsSchema = z.object({
+  plateVoltage: positiveVolts().optional(),
+  plateDissipation: quantity('W', { positive: true }).optional(),
+  screenVoltage: positiveVolts().optional(),
+  screenDissipation: quantity('W', { positive: true }).optional(),
+  cathodeCurrent: quantity('A', { positive: true }).optional(),
+  heaterCathodeVoltage: positiveVolts().optional(),
+  gridResistanceFixedBias: ohms().optional(),
+  gridResistanceCathodeBias: ohms().optional(),
+});
+
+const tubeCommon = {
+  name: z.string().max(80).optional(),
+  rgi: ohms().optional(),
+  capacitances: capacitancesSchema.optional(),
+  ratings: tubeRatingsSchema.optional(),
+};
+
+export const korenTriodeTubeSchema = z.object({
+  model: z.literal('koren-triode'),
+  mu: quantity('', { positive: true }),
+  ex: quantity('', { positive: true, max: 5 }),
+  kg1: quantity('', { positive: true }),
+  kp: quantity('', { positive: true }),
+  kvb: quantity('V²', { min: 0 }),
+  vct: volts().optional(),
+  ...tubeCommon,
+});
+
+export const korenPentodeTubeSchema = z.object({
+  model: z.literal('koren-pentode'),
+  mu: quantity('', { positive: true }),
+  ex: quantity('', { positive: true, max: 5 }),
+  kg1: quantity('', { positive: true }),
+  kg2: quantity('', { positive: true }),
+  kp: quantity('', { positive: true }),
+  kvb: quantity('V', { positive: true }),
+  vct: volts().optional(),
+  ...tubeCommon,
+});
+
+/** Ideal 3/2-power triode: Ia = K·(Vg + Va/µ)^1.5. */
+export const childLangmuirTubeSchema = z.object({
+  model: z.literal('child-langmuir'),
+  perveance: quantity('A/V^1.5', { positive: true }),
+  mu: quantity('', { positive: true }),
+  ...tubeCommon,
+});
+
+export const tubeSchema = z.discriminatedUnion('model', [
+  korenTriodeTubeSchema,
+  korenPentodeTubeSchema,
+  childLangmuirTubeSchema,
+]);
+export type Tube = z.output<typeof tubeSchema>;
+export type TubeInput = z.input<typeof tubeSchema>;
+
+export const driveSchema = z.object({
+  amplitude: quantity('V', { min: 0 }).default(0),
+  frequency: quantity('Hz', { positive: true, max: 1e6 }).default(1000),
+});
+
+export const loadSchema = z.object({
+  resistance: ohms(),
+  couplingCapacitor: farads(),
+});
+
+const cathodeBias = z.object({
+  kind: z.literal('cathode'),
+  cathodeResistor: ohms(),
+  cathodeBypass: farads().nullable().default(null),
+});
+const fixedBias = z.object({
+  kind: z.literal('fixed'),
+  fixedBias: quantity('V', { max: 0 }),
+});
+export const amplifierBiasSchema = z.discriminatedUnion('kind', [cathodeBias, fixedBias]);
+
+export const screenSchema = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('fixed'), supply: positiveVolts().optional() }),
+  z.object({ kind: z.literal('resistor'), resistor: ohms(), bypass: farads().nullable().default(null) }),
+]);
+
+const common = {
+  supply: positiveVolts(),
+  gridResistor: ohms(),
+  sourceResistance: ohms({ positive: false }).default(0),
+  heaterElevation: volts().default(0),
+  drive: driveSchema.default({ amplitude: 0, frequency: 1000 }),
+  /** fraction of a rating above which the check reports 'near' */
+  derating: quantity('', { positive: true, max: 1 }).default(0.7),
+};
+
+const commonCathode = z.object({
+  topology: z.literal('common-cathode'),
+  tube: tubeSchema,
+  ...common,
+  plateResistor: ohms(),
+  bias: amplifierBiasSchema,
+  load: loadSchema.optional(),
+});
+
+const cathodeFollower = z.object({
+  topology: z.literal('cathode-follower'),
+  tube: tubeSchema,
+  ...common,
+  bias: z.discriminatedUnion('kind', [
+    z.object({ kind: z.literal('dc-coupled'), gridVoltage: volts() }),
+    z.object({ kind: z.literal('self'), biasResistor: ohms() }),
+  ]),
+  cathodeResistor: ohms(),
+  plateResistor: ohms({ positive: false }).default(0),
+  load: loadSchema.optional(),
+});
+
+const pentodeAmplifier = z.object({
+  topology: z.literal('pentode-amplifier'),
+  tube: korenPentodeTubeSchema,
+  ...common,
+  plateResistor: ohms(),
+  bias: amplifierBiasSchema,
+  screen: screenSchema,
+  load: loadSchema.optional(),
+});
+
+const singleEndedOutput = z.object({
+  topology: z.literal('single-ended-output'),
+  tube: tubeSchema,
+  ...common,
+  primaryImpedance: ohms(),
+  primaryResistance: ohms({ positive: false }).default(0),
+  bias: amplifierBiasSchema,
+  screen: screenSchema.optional(),
+});
+
+const pushPullOutput = z.object({
+  topology: z.literal('push-pull-output'),
+  tube: tubeSchema,
+  ...common,
+  class: z.enum(['A', 'AB']),
+  plateToPlateImpedance: ohms(),
+  primaryResistance: ohms({ positive: false }).default(0),
+  bias: amplifierBiasSchema,
+  screen: screenSchema.optional(),
+});
+
+type Issue = { path: (string | number)[]; message: string };
+
+function crossFieldIssues(stage: Record<string, unknown> & { topology: string }): Issue[] {
+  const issues: Issue[] = [];
+  const s = stage as Record<string, any>;
+  if (s.topology === 'cathode-follower' && s.bias?.kind === 'self' && !(s.bias.biasResistor < s.cathodeResistor)) {
+    issues.push({ path: ['bias', 'biasResistor'], message: 'must be smaller than the total cathode resistor' });
+  }
+  if (s.topology === 'cathode-follower' && s.bias?.kind === 'dc-coupled' && !(s.bias.gridVoltage < s.supply)) {
+    issues.push({ path: ['bias', 'gridVoltage'], message: 'must be below the supply voltage' });
+  }
+  const screenSupply = s.screen?.kind === 'fixed' ? s.screen.supply : undefined;
+  if (typeof screenSupply === 'number' && screenSupply > s.supply * 1.5) {
+    issues.push({ path: ['screen', 'supply'], message: 'is far above the plate supply; check the value' });
+  }
+  if (s.tube && (s.topology === 'single-ended-output' || s.topology === 'push-pull-output')) {
+    if (s.tube.model === 'koren-pentode' && !s.screen) {
+      issues.push({ path: ['screen'], message: 'is required for a pentode or beam tetrode' });
+    }
+  }
+  return issues;
+}
+
+function withCrossChecks<T extends z.ZodType<Record<string, unknown> & { topology: string }>>(schema: T) {
+  return schema.superRefine((value, ctx) => {
+    for (const issue of crossFieldIssues(value)) ctx.addIssue({ code: 'custom', ...issue });
+  });
+}
+
+export const stageMemberSchemas = {
+  'common-cathode': commonCathode,
+  'cathode-follower': cathodeFollower,
+  'pentode-amplifier': pentodeAmplifier,
+  'single-ended-output': singleEndedOutput,
+  'push-pull-output': pushPullOutput,
+} as const;
+
+export const stageInputSchema = withCrossChecks(
+  z.discriminatedUnion('topology', [commonCathode, cathodeFollower, pentodeAmplifier, singleEndedOutput, pushPullOutput]),
+);
+
+const tubeId = z.number().int().positive();
+
+/** HTTP body variant: the route substitutes the library tube for `tubeId` before calling the engine. */
+export const stageBodySchema = withCrossChecks(
+  z.discriminatedUnion('topology', [
+    commonCathode.omit({ tube: true }).extend({ tubeId }),
+    cathodeFollower.omit({ tube: true }).extend({ tubeId }),
+    pentodeAmplifier.omit({ tube: true }).extend({ tubeId }),
+    singleEndedOutput.omit({ tube: true }).extend({ tubeId }),
+    pushPullOutput.omit({ tube: true }).extend({ tubeId }),
+  ]),
+);
+
+export type StageInput = z.output<typeof stageInputSchema>;
+export type StageInputRaw = z.input<typeof stageInputSchema>;
+export type StageBody = z.output<typeof stageBodySchema>;
+export type Topology = StageInput['topology'];
+export type CommonCathodeInput = Extract<StageInput, { topology: 'common-cathode' }>;
+export type CathodeFollowerInput = Extract<StageInput, { topology: 'cathode-follower' }>;
+export type PentodeAmplifierInput = Extract<StageInput, { topology: 'pentode-amplifier' }>;
+export type SingleEndedOutputInput = Extract<StageInput, { topology: 'single-ended-output' }>;
+export type PushPullOutputInput = Extract<StageInput, { topology: 'push-pull-output' }>;
+export type AmplifierBias = z.output<typeof amplifierBiasSchema>;
+export type Screen = z.output<typeof screenSchema>;
