@@ -28,7 +28,7 @@ export class Attachment extends Model<InferAttributes<Attachment>, InferCreation
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'attachments', underscored: true },
+      { sequelize, modelName: 'Attachment', tableName: 'attachments', underscored: true },
     );
   }
 }

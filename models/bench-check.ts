@@ -26,7 +26,7 @@ export class BenchCheck extends Model<InferAttributes<BenchCheck>, InferCreation
         notes: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
         createdAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'bench_checks', underscored: true, updatedAt: false },
+      { sequelize, modelName: 'BenchCheck', tableName: 'bench_checks', underscored: true, updatedAt: false },
     );
   }
 }

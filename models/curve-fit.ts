@@ -26,7 +26,7 @@ export class CurveFit extends Model<InferAttributes<CurveFit>, InferCreationAttr
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'curve_fits', underscored: true },
+      { sequelize, modelName: 'CurveFit', tableName: 'curve_fits', underscored: true },
     );
   }
 }

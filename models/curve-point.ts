@@ -20,7 +20,7 @@ export class CurvePoint extends Model<InferAttributes<CurvePoint>, InferCreation
         screenVoltage: { type: DataTypes.DOUBLE, allowNull: true },
         screenCurrent: { type: DataTypes.DOUBLE, allowNull: true },
       },
-      { sequelize, tableName: 'curve_points', underscored: true, timestamps: false },
+      { sequelize, modelName: 'CurvePoint', tableName: 'curve_points', underscored: true, timestamps: false },
     );
   }
 }

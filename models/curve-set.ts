@@ -34,7 +34,7 @@ export class CurveSet extends Model<InferAttributes<CurveSet>, InferCreationAttr
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'curve_sets', underscored: true },
+      { sequelize, modelName: 'CurveSet', tableName: 'curve_sets', underscored: true },
     );
   }
 }

@@ -18,7 +18,7 @@ export class Decision extends Model<InferAttributes<Decision>, InferCreationAttr
         comment: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
         createdAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'decisions', underscored: true, updatedAt: false },
+      { sequelize, modelName: 'Decision', tableName: 'decisions', underscored: true, updatedAt: false },
     );
   }
 }

@@ -35,7 +35,7 @@ export class MailOutbox extends Model<InferAttributes<MailOutbox>, InferCreation
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'mail_outbox', underscored: true },
+      { sequelize, modelName: 'MailOutbox', tableName: 'mail_outbox', underscored: true },
     );
   }
 }

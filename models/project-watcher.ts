@@ -12,7 +12,7 @@ export class ProjectWatcher extends Model<InferAttributes<ProjectWatcher>, Infer
         userId: { type: DataTypes.INTEGER, allowNull: false, primaryKey: true },
         createdAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'project_watchers', underscored: true, updatedAt: false },
+      { sequelize, modelName: 'ProjectWatcher', tableName: 'project_watchers', underscored: true, updatedAt: false },
     );
   }
 }

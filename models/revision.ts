@@ -24,7 +24,7 @@ export class Revision extends Model<InferAttributes<Revision>, InferCreationAttr
         submittedAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW },
         decidedAt: { type: DataTypes.DATE, allowNull: true },
       },
-      { sequelize, tableName: 'revisions', underscored: true, timestamps: false },
+      { sequelize, modelName: 'Revision', tableName: 'revisions', underscored: true, timestamps: false },
     );
   }
 }

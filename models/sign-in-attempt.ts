@@ -14,7 +14,7 @@ export class SignInAttempt extends Model<InferAttributes<SignInAttempt>, InferCr
         firstFailureAt: { type: DataTypes.DATE, allowNull: false },
         lockedUntil: { type: DataTypes.DATE, allowNull: true },
       },
-      { sequelize, tableName: 'sign_in_attempts', underscored: true, timestamps: false },
+      { sequelize, modelName: 'SignInAttempt', tableName: 'sign_in_attempts', underscored: true, timestamps: false },
     );
   }
 }

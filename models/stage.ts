@@ -34,7 +34,7 @@ export class Stage extends Model<InferAttributes<Stage>, InferCreationAttributes
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'stages', underscored: true },
+      { sequelize, modelName: 'Stage', tableName: 'stages', underscored: true },
     );
   }
 }

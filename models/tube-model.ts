@@ -30,7 +30,7 @@ export class TubeModel extends Model<InferAttributes<TubeModel>, InferCreationAt
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'tube_models', underscored: true },
+      { sequelize, modelName: 'TubeModel', tableName: 'tube_models', underscored: true },
     );
   }
 }

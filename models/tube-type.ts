@@ -37,7 +37,7 @@ export class TubeType extends Model<InferAttributes<TubeType>, InferCreationAttr
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'tube_types', underscored: true },
+      { sequelize, modelName: 'TubeType', tableName: 'tube_types', underscored: true },
     );
   }
 }

@@ -171,7 +171,7 @@ export async function listTubes(query: Partial<TubeListQuery> = {}): Promise<{ t
     and.push({
       [Op.or]: [
         { designation: { [Op.iLike]: like } },
-        sequelize.where(sequelize.literal(`array_to_string("TubeType"."aliases", ' ')`), { [Op.iLike]: like }),
+        sequelize.where(sequelize.fn('array_to_string', sequelize.col('aliases'), ' '), { [Op.iLike]: like }),
       ],
     } as WhereOptions<TubeType>);
   }

@@ -62,6 +62,19 @@ describe('GET /api/tubes', () => {
     expect(page2.json.tubes[0].designation).toBe(names[5]);
   });
 
+  it('searches by designation with a non-empty term, matching aliases in the same query', async () => {
+    const exact = await call(listRoute, { as: 'designer', path: '/api/tubes?search=12AX7' });
+    expect(exact.status).toBe(200);
+    expect(exact.json.tubes.map((t: { designation: string }) => t.designation)).toEqual(['12AX7']);
+    // "ax" is inside 12AX7's designation; "cc8" only inside aliases (ECC83, ECC81, ECC82…): both paths of the OR run.
+    const part = await call(listRoute, { as: 'technician', path: '/api/tubes?search=cc8' });
+    expect(part.status).toBe(200);
+    expect(part.json.tubes.map((t: { designation: string }) => t.designation)).toContain('12AX7');
+    const wild = await call(listRoute, { as: 'designer', path: '/api/tubes?search=%25_' });
+    expect(wild.status).toBe(200);
+    expect(wild.json.tubes).toEqual([]);
+  });
+
   it('answers a bad query with 422 and field messages', async () => {
     const r = await call(listRoute, { as: 'designer', path: '/api/tubes?pageSize=1000&family=heptode' });
     expect(r.status).toBe(422);
