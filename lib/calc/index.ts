@@ -6,6 +6,7 @@ import { analyzePentodeAmplifier } from './stages/pentode-amplifier';
 import { analyzePushPullOutput } from './stages/push-pull-output';
 import { analyzeSingleEndedOutput } from './stages/single-ended-output';
 import type { StageAnalysis } from './types';
+import type { AnalyzeOptions } from './stages/single-tube';
 
 export { CalcError } from './errors';
 export type { CalcErrorCode } from './errors';
@@ -21,6 +22,7 @@ export { childLangmuirDiodeCurrent, threeHalvesTriodeCurrent, planarPerveance } 
 export { tubeSubcircuit, stageNetlist, SPICE_PRELUDE } from './spice';
 export type { NetlistOptions, SpiceAnalysis } from './spice';
 export * as formulas from './formulas';
+export type { AnalyzeOptions } from './stages/single-tube';
 
 /** True when every number reachable from `value` is finite (no path strings built: this runs on every result). */
 function allFinite(value: unknown): boolean {
@@ -47,23 +49,23 @@ function assertFinite(value: unknown, path: string): void {
 }
 
 /** The one public entry: analyses a validated stage (the output of `stageInputSchema`). */
-export function analyzeStage(input: StageInput): StageAnalysis {
+export function analyzeStage(input: StageInput, options?: AnalyzeOptions): StageAnalysis {
   let result: StageAnalysis;
   switch (input.topology) {
     case 'common-cathode':
-      result = analyzeCommonCathode(input);
+      result = analyzeCommonCathode(input, options);
       break;
     case 'cathode-follower':
-      result = analyzeCathodeFollower(input);
+      result = analyzeCathodeFollower(input, options);
       break;
     case 'pentode-amplifier':
-      result = analyzePentodeAmplifier(input);
+      result = analyzePentodeAmplifier(input, options);
       break;
     case 'single-ended-output':
-      result = analyzeSingleEndedOutput(input);
+      result = analyzeSingleEndedOutput(input, options);
       break;
     case 'push-pull-output':
-      result = analyzePushPullOutput(input);
+      result = analyzePushPullOutput(input, options);
       break;
     default:
       throw new CalcError('invalid-input', `Unknown topology '${(input as { topology: string }).topology}'.`);

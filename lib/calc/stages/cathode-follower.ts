@@ -3,9 +3,9 @@ import { CalcError } from '../errors';
 import { tubeModel } from '../models/registry';
 import type { StageAnalysis } from '../types';
 import { parallel } from './common-cathode';
-import { analyzeSingleTube } from './single-tube';
+import { analyzeSingleTube, type AnalyzeOptions } from './single-tube';
 
-export function analyzeCathodeFollower(input: CathodeFollowerInput): StageAnalysis {
+export function analyzeCathodeFollower(input: CathodeFollowerInput, options?: AnalyzeOptions): StageAnalysis {
   if (input.tube.model === 'koren-pentode') {
     throw new CalcError('unsupported', 'The cathode follower is calculated for triodes only.');
   }
@@ -44,5 +44,6 @@ export function analyzeCathodeFollower(input: CathodeFollowerInput): StageAnalys
     outputShunt: rk,
     transformerLoad: null,
     warnings: self ? [] : ['DC-coupled grid: the grid-circuit resistance is checked against the fixed-bias limit.'],
+    options,
   });
 }

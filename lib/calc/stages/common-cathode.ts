@@ -2,7 +2,7 @@ import type { CommonCathodeInput } from '../input';
 import { CalcError } from '../errors';
 import { tubeModel } from '../models/registry';
 import type { StageAnalysis } from '../types';
-import { analyzeSingleTube } from './single-tube';
+import { analyzeSingleTube, type AnalyzeOptions } from './single-tube';
 
 export const parallel = (a: number, b: number) => (a * b) / (a + b);
 
@@ -21,7 +21,7 @@ export function cathodeBiasParts(bias: CommonCathodeInput['bias']) {
   };
 }
 
-export function analyzeCommonCathode(input: CommonCathodeInput): StageAnalysis {
+export function analyzeCommonCathode(input: CommonCathodeInput, options?: AnalyzeOptions): StageAnalysis {
   if (input.tube.model === 'koren-pentode') {
     throw new CalcError('invalid-input', 'This tube is a pentode: use the pentode amplifier topology, which sets its screen.');
   }
@@ -53,5 +53,6 @@ export function analyzeCommonCathode(input: CommonCathodeInput): StageAnalysis {
     outputShunt: ra,
     transformerLoad: null,
     warnings: [],
+    options,
   });
 }

@@ -2,7 +2,7 @@ import type { PentodeAmplifierInput, Screen } from '../input';
 import { tubeModel } from '../models/registry';
 import type { StageAnalysis } from '../types';
 import { cathodeBiasParts, parallel } from './common-cathode';
-import { analyzeSingleTube } from './single-tube';
+import { analyzeSingleTube, type AnalyzeOptions } from './single-tube';
 
 export function screenParts(screen: Screen, supply: number) {
   if (screen.kind === 'fixed') return { net: { supply: screen.supply ?? supply, dc: 0, ac: 0 }, bypass: null };
@@ -13,7 +13,7 @@ export function screenParts(screen: Screen, supply: number) {
   };
 }
 
-export function analyzePentodeAmplifier(input: PentodeAmplifierInput): StageAnalysis {
+export function analyzePentodeAmplifier(input: PentodeAmplifierInput, options?: AnalyzeOptions): StageAnalysis {
   const model = tubeModel(input.tube);
   const bias = cathodeBiasParts(input.bias);
   const screen = screenParts(input.screen, input.supply);
@@ -43,5 +43,6 @@ export function analyzePentodeAmplifier(input: PentodeAmplifierInput): StageAnal
     outputShunt: ra,
     transformerLoad: null,
     warnings: [],
+    options,
   });
 }

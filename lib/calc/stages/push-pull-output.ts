@@ -11,7 +11,7 @@ import { solveNetwork } from './network';
 import { modelEvaluations } from '../models/registry';
 import { solveDenseInPlace } from './newton';
 import { screenParts } from './pentode-amplifier';
-import { checkIdle, operatingPointOf, stagePlot } from './single-tube';
+import { checkIdle, EMPTY_PLOT, operatingPointOf, QUICK_SAMPLES, stagePlot, type AnalyzeOptions } from './single-tube';
 
 /*
  * Ideal centre-tapped output transformer, plate-to-plate load Raa, each half-primary N turns.
@@ -314,7 +314,8 @@ function solvePPBracketed(net: PPNet, vin: number, m: PPMeans, guess?: PPSample)
 
 const dbOf = (ratio: number) => (ratio > 0 ? Math.max(-200, 20 * Math.log10(ratio)) : -200);
 
-export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis {
+export function analyzePushPullOutput(input: PushPullOutputInput, options?: AnalyzeOptions): StageAnalysis {
+  const quick = options?.quick === true;
   const model = tubeModel(input.tube);
   if (model.kind === 'pentode' && !input.screen) {
     throw new CalcError('invalid-input', 'A pentode or beam tetrode needs a screen supply.');
@@ -449,7 +450,7 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
     }, from, Math.max(16, count / 8));
   };
   const amp = input.drive.amplitude;
-  const steady = cycleAt(amp);
+  const steady = cycleAt(amp, quick ? QUICK_SAMPLES : SAMPLES);
   const samples = steady.result;
   const out = samples.map((s) => 2 * s.v);
   const amps = harmonicAmplitudes(out, 10);
@@ -497,9 +498,9 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
   });
   for (const r of ratings) if (r.status === 'over') warnings.push(`${r.label} exceeds the tube's rating.`);
 
-  const stride = out.length / 128;
+  const stride = out.length / Math.min(128, out.length);
   const period = 1 / input.drive.frequency;
-  const drive = sineDrive(amp);
+  const drive = sineDrive(amp, out.length);
   const waveform = { t: [] as number[], input: [] as number[], output: [] as number[] };
   for (let k = 0; k < out.length; k += stride) {
     waveform.t.push((k / out.length) * period);
@@ -520,7 +521,7 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
       inputCapacitance: cin,
       lowCutoff: cutoff(factors, 'low'),
       highCutoff: cutoff(factors, 'high'),
-      response: responseCurve(gain, factors),
+      response: quick ? [] : responseCurve(gain, factors),
     },
     largeSignal: {
       drive: amp,
@@ -538,7 +539,7 @@ export function analyzePushPullOutput(input: PushPullOutputInput): StageAnalysis
       waveform,
     },
     ratings,
-    plot: stagePlot(model, opPoint, halfRdc + 2 * rk, raa / 4, input.supply, input.tube),
+    plot: quick ? { ...EMPTY_PLOT, operatingPoint: { va: opPoint.plateCathodeVoltage, ia: opPoint.plateCurrent } } : stagePlot(model, opPoint, halfRdc + 2 * rk, raa / 4, input.supply, input.tube),
     warnings,
   };
 }

@@ -4,13 +4,13 @@ import { tubeModel } from '../models/registry';
 import type { StageAnalysis } from '../types';
 import { cathodeBiasParts } from './common-cathode';
 import { screenParts } from './pentode-amplifier';
-import { analyzeSingleTube } from './single-tube';
+import { analyzeSingleTube, type AnalyzeOptions } from './single-tube';
 
 /**
  * Ideal output transformer: the primary's DC resistance carries the whole plate current, the reflected load
  * (primaryImpedance) only its signal part, so the plate sees Rdc at DC and Rdc + Zp for the signal.
  */
-export function analyzeSingleEndedOutput(input: SingleEndedOutputInput): StageAnalysis {
+export function analyzeSingleEndedOutput(input: SingleEndedOutputInput, options?: AnalyzeOptions): StageAnalysis {
   const model = tubeModel(input.tube);
   if (model.kind === 'pentode' && !input.screen) {
     throw new CalcError('invalid-input', 'A pentode or beam tetrode needs a screen supply.');
@@ -42,5 +42,6 @@ export function analyzeSingleEndedOutput(input: SingleEndedOutputInput): StageAn
     outputShunt: null,
     transformerLoad: input.primaryImpedance,
     warnings: [],
+    options,
   });
 }

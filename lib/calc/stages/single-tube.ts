@@ -41,7 +41,17 @@ export type SingleTubeSpec = {
   /** reflected load of an output transformer (power is delivered into it) */
   transformerLoad: number | null;
   warnings: string[];
+  options?: AnalyzeOptions;
 };
+
+/**
+ * Cheaper analysis for many-trial runs (tolerance runs, part searches): `quick` skips the plot data and the
+ * response curve (the cut-off frequencies are still found) and solves the drive cycle on 64 samples instead of 256
+ * (harmonics 2–10 stay below the 32-sample Nyquist limit).
+ */
+export type AnalyzeOptions = { quick?: boolean };
+export const QUICK_SAMPLES = 64;
+export const EMPTY_PLOT: StagePlot = { dcLoadLine: [], acLoadLine: [], operatingPoint: { va: 0, ia: 0 }, paMax: [], curves: [], transfer: [], screenVoltage: null };
 
 const finite = (x: number, fallback = 0) => (Number.isFinite(x) ? x : fallback);
 const dbOf = (ratio: number) => (ratio > 0 ? Math.max(-200, 20 * Math.log10(ratio)) : -200);
@@ -145,7 +155,8 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
 
   // large signal
   const amp = input.drive.amplitude;
-  const drive = sineDrive(amp);
+  const quick = spec.options?.quick === true;
+  const drive = sineDrive(amp, quick ? QUICK_SAMPLES : undefined);
   const coarseDrive = new Map<number, number[]>();
   // Last solved cycle per sample count: the next cycle (slightly different means) starts each sample from it,
   // shifted by how far the previous sample moved between the two cycles.
@@ -209,7 +220,7 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
     lastCycle.set(n, samples);
     return { means: { ia: ia / n, ig2: ig2 / n, ik: ik / n }, result: { samples, out: samples.map((s) => outputVoltage(net, s)) } as CycleResult };
   };
-  const steady = amp > 0 ? steadyState<Means, CycleResult>(activeMeans(net), m0, runCycle) : runCycle(m0);
+  const steady = amp > 0 ? steadyState<Means, CycleResult>(activeMeans(net), m0, runCycle, undefined, quick ? 16 : undefined) : runCycle(m0);
   const { samples, out } = steady.result;
   const amps = harmonicAmplitudes(out, 10);
   const h1 = amps[1] ?? 0;
@@ -233,7 +244,7 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
     const i1 = h1 / net.plateAc;
     outputPower = (spec.transformerLoad * i1 * i1) / 2;
   }
-  const stride = drive.length / 128;
+  const stride = drive.length / Math.min(128, drive.length);
   const period = 1 / input.drive.frequency;
   const outMean = mean(out);
   const waveform = { t: [] as number[], input: [] as number[], output: [] as number[] };
@@ -272,7 +283,7 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
     warnings.push(`The drive (${amp.toPrecision(3)} V) is beyond the headroom limit of ${headroom.maxDrive.toPrecision(3)} V (${headroom.limitedBy}).`);
   }
 
-  const plot = stagePlot(model, opPoint, net.plateDc + net.cathodeDc, net.plateAc + net.cathodeAc, input.supply, spec.tube);
+  const plot = quick ? { ...EMPTY_PLOT, operatingPoint: { va: vak0, ia: op.ia } } : stagePlot(model, opPoint, net.plateDc + net.cathodeDc, net.plateAc + net.cathodeAc, input.supply, spec.tube);
   return {
     topology: spec.topology,
     operatingPoint: opPoint,
@@ -287,7 +298,7 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
       inputCapacitance: cin,
       lowCutoff: cutoff(factors, 'low'),
       highCutoff: cutoff(factors, 'high'),
-      response: responseCurve(gain, factors),
+      response: quick ? [] : responseCurve(gain, factors),
     },
     largeSignal,
     ratings,
