@@ -2,10 +2,11 @@ import 'server-only';
 import { QueryTypes } from 'sequelize';
 import { z } from 'zod';
 import { sequelize } from '@/lib/db';
+import { idText } from '@/lib/validation/ids';
 
 export const auditQuerySchema = z.object({
-  projectId: z.coerce.number().int().positive().optional(),
-  userId: z.coerce.number().int().positive().optional(),
+  projectId: idText().optional(),
+  userId: idText().optional(),
   action: z.string().max(60).optional(),
   limit: z.coerce.number().int().min(1).max(500).default(200),
 });

@@ -138,6 +138,17 @@ const pentodeAmplifier = z.object({
   load: loadSchema.optional(),
 });
 
+/** Output transformer beyond the ideal one: empty values are limits that are not modelled. */
+export const outputTransformerSchema = z.object({
+  /** speaker load the primary impedance is quoted for (4, 8, 16 Ω or any) */
+  speakerLoad: ohms(),
+  secondaryResistance: ohms({ positive: false }).nullable().default(null),
+  primaryInductance: quantity('H', { positive: true }).nullable().default(null),
+  leakageInductance: quantity('H', { positive: true }).nullable().default(null),
+  windingCapacitance: quantity('F', { positive: true }).nullable().default(null),
+});
+export type OutputTransformer = z.output<typeof outputTransformerSchema>;
+
 const singleEndedOutput = z.object({
   topology: z.literal('single-ended-output'),
   tube: tubeSchema,
@@ -146,6 +157,7 @@ const singleEndedOutput = z.object({
   primaryResistance: ohms({ positive: false }).default(0),
   bias: amplifierBiasSchema,
   screen: screenSchema.optional(),
+  transformer: outputTransformerSchema.optional(),
 });
 
 const pushPullOutput = z.object({
@@ -157,6 +169,59 @@ const pushPullOutput = z.object({
   primaryResistance: ohms({ positive: false }).default(0),
   bias: amplifierBiasSchema,
   screen: screenSchema.optional(),
+  transformer: outputTransformerSchema.optional(),
+});
+
+/**
+ * Long-tailed pair (differential phase splitter): two sections of one triode type with a common cathode circuit.
+ * Grid 1 is driven; grid 2 is held at AC ground by its capacitor. Plate 1 is the inverting output, plate 2 the
+ * non-inverting one.
+ */
+const longTailedPair = z.object({
+  topology: z.literal('long-tailed-pair'),
+  tube: tubeSchema,
+  ...common,
+  plateResistors: z.object({ inverting: ohms(), nonInverting: ohms() }),
+  tail: z.discriminatedUnion('kind', [
+    z.object({
+      kind: z.literal('resistor'),
+      /** shared bias resistor between the joined cathodes and the tap (0: none) */
+      biasResistor: ohms({ positive: false }).default(0),
+      tailResistor: ohms(),
+      /** where the tail returns: 0 (ground) or a negative supply */
+      tailSupply: quantity('V', { max: 0 }).default(0),
+    }),
+    z.object({ kind: z.literal('current-source'), current: quantity('A', { positive: true }) }),
+  ]),
+  grids: z.discriminatedUnion('kind', [
+    /** both grid resistors return to the tap between the bias resistor and the tail (input AC-coupled) */
+    z.object({ kind: z.literal('bias-tap') }),
+    /** grids sit at a DC potential (grid 1 DC-coupled from the previous plate, grid 2 referenced to the same) */
+    z.object({ kind: z.literal('dc'), gridVoltage: volts() }),
+  ]),
+  /** grid 2 to ground */
+  secondGridBypass: farads(),
+  /** the next stage's grid resistor on each output, through a coupling capacitor */
+  load: loadSchema.optional(),
+});
+
+/**
+ * Split-load (concertina) phase splitter: plate and cathode loads, a bias resistor between the cathode and the
+ * cathode load; the grid resistor returns to their junction (bootstrapped) or the grid is DC-coupled.
+ */
+const splitLoad = z.object({
+  topology: z.literal('split-load'),
+  tube: tubeSchema,
+  ...common,
+  plateResistor: ohms(),
+  /** the cathode load below the bias resistor (normally equal to the plate resistor) */
+  cathodeResistor: ohms(),
+  biasResistor: ohms({ positive: false }).default(0),
+  bias: z.discriminatedUnion('kind', [
+    z.object({ kind: z.literal('bootstrapped') }),
+    z.object({ kind: z.literal('dc-coupled'), gridVoltage: volts() }),
+  ]),
+  load: loadSchema.optional(),
 });
 
 type Issue = { path: (string | number)[]; message: string };
@@ -179,6 +244,23 @@ function crossFieldIssues(stage: Record<string, unknown> & { topology: string })
       issues.push({ path: ['screen'], message: 'is required for a pentode or beam tetrode' });
     }
   }
+  if (s.topology === 'long-tailed-pair') {
+    if (s.tail?.kind === 'current-source' && s.grids?.kind === 'bias-tap') {
+      issues.push({ path: ['grids', 'kind'], message: 'a current-source tail has no bias tap: give the grids a DC potential' });
+    }
+    if (s.tail?.kind === 'resistor' && s.grids?.kind === 'bias-tap' && !(s.tail.biasResistor > 0)) {
+      issues.push({ path: ['tail', 'biasResistor'], message: 'is needed when the grids return to the bias tap' });
+    }
+    if (s.grids?.kind === 'dc' && !(s.grids.gridVoltage < s.supply)) {
+      issues.push({ path: ['grids', 'gridVoltage'], message: 'must be below the supply voltage' });
+    }
+  }
+  if (s.topology === 'split-load' && s.bias?.kind === 'dc-coupled' && !(s.bias.gridVoltage < s.supply)) {
+    issues.push({ path: ['bias', 'gridVoltage'], message: 'must be below the supply voltage' });
+  }
+  if (s.tube?.model === 'koren-pentode' && (s.topology === 'long-tailed-pair' || s.topology === 'split-load')) {
+    issues.push({ path: ['tube'], message: 'must be a triode for a phase splitter' });
+  }
   return issues;
 }
 
@@ -194,13 +276,15 @@ export const stageMemberSchemas = {
   'pentode-amplifier': pentodeAmplifier,
   'single-ended-output': singleEndedOutput,
   'push-pull-output': pushPullOutput,
+  'long-tailed-pair': longTailedPair,
+  'split-load': splitLoad,
 } as const;
 
 export const stageInputSchema = withCrossChecks(
-  z.discriminatedUnion('topology', [commonCathode, cathodeFollower, pentodeAmplifier, singleEndedOutput, pushPullOutput]),
+  z.discriminatedUnion('topology', [commonCathode, cathodeFollower, pentodeAmplifier, singleEndedOutput, pushPullOutput, longTailedPair, splitLoad]),
 );
 
-const tubeId = z.number().int().positive();
+const tubeId = z.number().int().positive().max(2_147_483_647, "Not a valid id.");
 
 /** HTTP body variant: the route substitutes the library tube for `tubeId` before calling the engine. */
 export const stageBodySchema = withCrossChecks(
@@ -210,6 +294,8 @@ export const stageBodySchema = withCrossChecks(
     pentodeAmplifier.omit({ tube: true }).extend({ tubeId }),
     singleEndedOutput.omit({ tube: true }).extend({ tubeId }),
     pushPullOutput.omit({ tube: true }).extend({ tubeId }),
+    longTailedPair.omit({ tube: true }).extend({ tubeId }),
+    splitLoad.omit({ tube: true }).extend({ tubeId }),
   ]),
 );
 
@@ -222,5 +308,7 @@ export type CathodeFollowerInput = Extract<StageInput, { topology: 'cathode-foll
 export type PentodeAmplifierInput = Extract<StageInput, { topology: 'pentode-amplifier' }>;
 export type SingleEndedOutputInput = Extract<StageInput, { topology: 'single-ended-output' }>;
 export type PushPullOutputInput = Extract<StageInput, { topology: 'push-pull-output' }>;
+export type LongTailedPairInput = Extract<StageInput, { topology: 'long-tailed-pair' }>;
+export type SplitLoadInput = Extract<StageInput, { topology: 'split-load' }>;
 export type AmplifierBias = z.output<typeof amplifierBiasSchema>;
 export type Screen = z.output<typeof screenSchema>;

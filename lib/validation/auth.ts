@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { idText } from './ids';
 import { ROLE_VALUES } from './roles';
 
 export const signInSchema = z.object({
@@ -32,4 +33,4 @@ export const updateUserSchema = z
   .refine((v) => Object.keys(v).length > 0, { message: 'Nothing to change.' });
 export type UpdateUserInput = z.infer<typeof updateUserSchema>;
 
-export const idParamSchema = z.object({ id: z.coerce.number().int().positive('Not a valid id.') });
+export const idParamSchema = z.object({ id: idText() });

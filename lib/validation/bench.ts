@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { idText } from './ids';
 import { quantity } from './quantity';
 
 const optionalVolts = () =>
@@ -31,7 +32,7 @@ export const benchListQuerySchema = z.object({
   verdict: z.enum(BENCH_VERDICTS).optional(),
   /** "failing only": the checks whose verdict is fail */
   failing: z.enum(['1', 'true', '0', 'false']).optional().transform((v) => v === '1' || v === 'true'),
-  stageId: z.coerce.number().int().positive().optional(),
+  stageId: idText().optional(),
   limit: z.coerce.number().int().min(1).max(500).default(200),
 });
 export type BenchListQuery = z.output<typeof benchListQuerySchema>;
@@ -39,4 +40,4 @@ export type BenchListQuery = z.output<typeof benchListQuerySchema>;
 export const PHOTO_TYPES = ['image/jpeg', 'image/png', 'image/webp'] as const;
 export const MAX_PHOTO_BYTES = 8 * 1024 * 1024;
 
-export const photoParamSchema = z.object({ id: z.coerce.number().int().positive(), photoId: z.coerce.number().int().positive() });
+export const photoParamSchema = z.object({ id: idText(), photoId: idText() });

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { idNumber, idText, intCounter } from './ids';
 import { quantity } from './quantity';
 import { stageBodySchema } from './stage';
 
@@ -75,13 +76,13 @@ export const benchTolerancesSchema = z.partialRecord(
 
 export const updateProjectSchema = z
   .object({
-    version: z.number({ message: 'Send the version you read.' }).int().positive(),
+    version: intCounter('Send the version you read.'),
     name: projectName.optional(),
     description: description.optional(),
     archived: z.boolean().optional(),
     supply: projectSupplySchema.optional(),
     benchTolerances: benchTolerancesSchema.optional(),
-    watchers: z.array(z.number().int().positive()).max(50).optional(),
+    watchers: z.array(idNumber()).max(50).optional(),
   })
   .refine((v) => Object.keys(v).some((k) => k !== 'version'), { message: 'Nothing to change.' });
 export type UpdateProjectInput = z.input<typeof updateProjectSchema>;
@@ -102,8 +103,8 @@ export type ListProjectsQuery = z.output<typeof listProjectsQuerySchema>;
 export const stageMetaSchema = z.object({
   name: z.string().trim().min(1, 'Name the stage.').max(120),
   supplyNode: z.string().trim().max(40).nullable().optional(),
-  position: z.number().int().positive().optional(),
-  tubeModelId: z.number().int().positive().nullable().optional(),
+  position: intCounter().optional(),
+  tubeModelId: idNumber().nullable().optional(),
 });
 
 /** POST /api/projects/{id}/stages: the stage body (engine inputs with tubeId) plus its name and place in the chain. */
@@ -116,7 +117,7 @@ export type CreateStageInput = z.input<typeof createStageSchema>;
  */
 export const updateStageSchema = z
   .object({
-    version: z.number({ message: 'Send the version you read.' }).int().positive(),
+    version: intCounter('Send the version you read.'),
     name: stageMetaSchema.shape.name.optional(),
     supplyNode: stageMetaSchema.shape.supplyNode,
     position: stageMetaSchema.shape.position,
@@ -126,7 +127,7 @@ export const updateStageSchema = z
   .refine((v) => Object.keys(v).some((k) => k !== 'version'), { message: 'Nothing to change.' });
 export type UpdateStageInput = z.input<typeof updateStageSchema>;
 
-export const deleteStageQuerySchema = z.object({ version: z.coerce.number().int().positive('Send the version you read.') });
+export const deleteStageQuerySchema = z.object({ version: idText('Send the version you read.') });
 
 /** chain view: the chain input level in V rms (engineering notation allowed: 100m) */
 export const chainQuerySchema = z.object({

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { idText } from './ids';
 
 export const submitRevisionSchema = z.object({
   /** a note to the reviewers, sent with the notice */
@@ -24,5 +25,5 @@ export const REVISION_STATES = ['submitted', 'approved', 'changes-requested'] as
 
 export const revisionListQuerySchema = z.object({
   state: z.enum(REVISION_STATES).optional(),
-  projectId: z.coerce.number().int().positive().optional(),
+  projectId: idText().optional(),
 });

@@ -2,6 +2,7 @@
 // numeric fields accept engineering notation ('300', '1M', '2m2') through quantity().
 import { z } from 'zod';
 import { acceptFitSchema } from './curve-set';
+import { idNumber, idText } from './ids';
 import { quantity } from './quantity';
 
 export const TUBE_FAMILIES = ['triode', 'pentode', 'beam-tetrode'] as const;
@@ -171,17 +172,17 @@ export type TubeListQuery = z.output<typeof tubeListQuerySchema>;
 export const compareQuerySchema = z.object({
   ids: z
     .string()
-    .transform((s) => s.split(',').map((x) => Number(x.trim())))
-    .pipe(z.array(z.number().int().positive('Not a valid id.')).min(2, 'Choose two or three types.').max(3, 'Choose two or three types.')),
+    .transform((s) => s.split(','))
+    .pipe(z.array(idText()).min(2, 'Choose two or three types.').max(3, 'Choose two or three types.')),
   vaMax: quantity('V', { positive: true, max: 2000 }).optional(),
 });
 
 /** POST /api/curve-sets/{id}/accept: the shared accept fields plus which fit (the latest proposed one when omitted). */
-export const acceptFitBodySchema = acceptFitSchema.extend({ fitId: z.number().int().positive().optional() });
-export const discardFitBodySchema = z.object({ fitId: z.number().int().positive().optional() });
+export const acceptFitBodySchema = acceptFitSchema.extend({ fitId: idNumber().optional() });
+export const discardFitBodySchema = z.object({ fitId: idNumber().optional() });
 
-export const tubeIdParamSchema = z.object({ id: z.coerce.number().int().positive() });
-export const tubeModelParamSchema = z.object({ id: z.coerce.number().int().positive(), modelId: z.coerce.number().int().positive() });
+export const tubeIdParamSchema = z.object({ id: idText() });
+export const tubeModelParamSchema = z.object({ id: idText(), modelId: idText() });
 
 export const MAX_ATTACHMENT_BYTES = 20 * 1024 * 1024;
 export const attachmentFieldsSchema = z.object({ kind: z.enum(['datasheet', 'other']).default('datasheet') });

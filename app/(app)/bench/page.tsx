@@ -1,4 +1,5 @@
 import type { Metadata } from 'next';
+import { pageId } from '@/lib/validation/ids';
 import { BenchWorkbench } from '@/components/bench/bench-workbench';
 import { Caution } from '@/components/shell/caution';
 import { PageHeader } from '@/components/ui/card';
@@ -13,7 +14,7 @@ export const dynamic = 'force-dynamic';
 export default async function BenchPage({ searchParams }: { searchParams: Promise<{ stage?: string }> }) {
   const user = await requirePageUser('bench:write');
   const { stage } = await searchParams;
-  const stageId = stage && /^\d+$/.test(stage) ? Number(stage) : null;
+  const stageId = pageId(stage);
   const projects = await benchPickerOptions();
   let initial = null;
   if (stageId) {

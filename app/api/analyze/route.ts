@@ -5,9 +5,10 @@ import { ApiError } from '@/lib/api/errors';
 import { parseBody, withUser } from '@/lib/api/with-user';
 import { analyzeStage } from '@/lib/calc';
 import { engineInputFor } from '@/lib/stages/service';
+import { idNumber } from '@/lib/validation/ids';
 import { stageBodySchema, stageInputSchema } from '@/lib/validation/stage';
 
-const tubeModelIdSchema = z.object({ tubeModelId: z.number().int().positive().nullable().optional() });
+const tubeModelIdSchema = z.object({ tubeModelId: idNumber().nullable().optional() });
 
 export const POST = withUser('app:use', async (req) => {
   const raw = await parseBody(req, z.record(z.string(), z.unknown(), { message: 'Send the stage inputs as a JSON object.' }));

@@ -4,14 +4,15 @@ import { ProjectView } from '@/components/projects/project-view';
 import { ApiError } from '@/lib/api/errors';
 import { can } from '@/lib/auth/policy';
 import { requirePageUser } from '@/lib/auth/session';
+import { pageId } from '@/lib/validation/ids';
 import { getProject, listWatcherOptions, type ProjectDetail } from '@/lib/projects/service';
 
 export const metadata: Metadata = { title: 'Project' };
 
 export default async function ProjectPage({ params }: { params: Promise<{ id: string }> }) {
   const user = await requirePageUser('projects:read');
-  const id = Number((await params).id);
-  if (!Number.isInteger(id) || id <= 0) notFound();
+  const id = pageId((await params).id);
+  if (id === null) notFound();
   let project: ProjectDetail;
   try {
     project = await getProject(id);

@@ -1,6 +1,7 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
+import { pageId } from '@/lib/validation/ids';
 import { DecisionForm } from '@/components/reviews/decision-form';
 import { FrozenResults } from '@/components/reviews/frozen-results';
 import { RevisionDiffView } from '@/components/reviews/revision-diff';
@@ -18,7 +19,7 @@ export const dynamic = 'force-dynamic';
 export default async function RevisionPage({ params }: { params: Promise<{ id: string }> }) {
   const user = await requirePageUser('reviews:read');
   const { id } = await params;
-  if (!/^\d+$/.test(id)) notFound();
+  if (pageId(id) === null) notFound();
   let rev;
   try {
     rev = await getRevision(Number(id));

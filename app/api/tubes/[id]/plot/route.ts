@@ -3,11 +3,12 @@ import { NextResponse } from 'next/server';
 import { z } from 'zod';
 import { parseParams, parseQuery, withUser } from '@/lib/api/with-user';
 import { tubePlot } from '@/lib/tubes/service';
+import { idText } from '@/lib/validation/ids';
 import { quantity } from '@/lib/validation/quantity';
 import { tubeIdParamSchema } from '@/lib/validation/tube';
 
 const plotQuerySchema = z.object({
-  modelId: z.coerce.number().int().positive().optional(),
+  modelId: idText().optional(),
   vaMax: quantity('V', { positive: true, max: 2000 }).optional(),
   screenVoltage: quantity('V', { positive: true, max: 1000 }).optional(),
 });

@@ -1,5 +1,6 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
+import { pageId } from '@/lib/validation/ids';
 import { StageEditor } from '@/components/stage-editor/stage-editor';
 import { ApiError } from '@/lib/api/errors';
 import { can } from '@/lib/auth/policy';
@@ -10,7 +11,7 @@ import { listTubeOptions } from '@/lib/tubes/service';
 
 export const metadata: Metadata = { title: 'Stage editor' };
 
-const positiveInt = (s: string) => (/^[1-9]\d{0,9}$/.test(s) ? Number(s) : null);
+const positiveInt = pageId;
 
 export default async function StagePage({ params }: { params: Promise<{ id: string; stageId: string }> }) {
   const user = await requirePageUser('projects:read');

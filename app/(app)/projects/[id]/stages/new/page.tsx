@@ -1,5 +1,6 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
+import { pageId } from '@/lib/validation/ids';
 import { StageEditor } from '@/components/stage-editor/stage-editor';
 import { ApiError } from '@/lib/api/errors';
 import { requirePageUser } from '@/lib/auth/session';
@@ -11,7 +12,7 @@ export const metadata: Metadata = { title: 'New stage' };
 export default async function NewStagePage({ params }: { params: Promise<{ id: string }> }) {
   await requirePageUser('projects:write');
   const { id } = await params;
-  if (!/^[1-9]\d{0,9}$/.test(id)) notFound();
+  if (pageId(id) === null) notFound();
   const [project, tubes] = await Promise.all([getProject(Number(id)), listTubeOptions()]).catch((e: unknown) => {
     if (e instanceof ApiError && e.code === 'not_found') notFound();
     throw e;
