@@ -4,4 +4,4 @@ set -uo pipefail
 ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
 cd "$ROOT"
 bash scripts/fakes.sh stop
-if [ -f .pgdata/PG_VERSION ]; then bash scripts/pg.sh stop; fi
+if [ -f "$(bash scripts/pg.sh datadir)/PG_VERSION" ]; then bash scripts/pg.sh stop; fi
