@@ -1,5 +1,0 @@
-import { StageEditorSkeleton } from '@/components/stage-editor/stage-editor';
-
-export default function Loading() {
-  return <StageEditorSkeleton />;
-}
