@@ -5,5 +5,5 @@ import { withAuth } from 'next-auth/middleware';
 export default withAuth({ pages: { signIn: '/sign-in' } });
 
 export const config = {
-  matcher: ['/((?!api|_next|fonts|favicon.ico|sign-in|invitations|forbidden).*)'],
+  matcher: ['/((?!api|_next|fonts|favicon.ico|icon.svg|sign-in|invitations|forbidden).*)'],
 };
