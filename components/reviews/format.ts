@@ -12,11 +12,4 @@ export function fmtValue(v: unknown, unit: string): string {
   return String(v);
 }
 
-export function fmtRelative(r: number | null) {
-  if (r === null || !Number.isFinite(r)) return '';
-  const p = r * 100;
-  if (Math.abs(p) < 0.05) return '±0 %';
-  return `${p > 0 ? '+' : '−'}${Math.abs(p).toFixed(Math.abs(p) < 10 ? 1 : 0)} %`;
-}
-
 export const STATE_WORDS = { submitted: 'waiting for a decision', approved: 'approved', 'changes-requested': 'changes requested' } as const;

@@ -1,7 +1,19 @@
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import type { RevisionDiff, StageDiff, ValueChange } from '@/lib/review/diff';
 import { cn } from '@/lib/utils';
-import { fmtRelative, fmtValue } from './format';
+import { fmtValue } from './format';
+import type { MagnitudeChange } from '@/lib/review/diff';
+
+/** Signed values stay in their columns; this column says which way the magnitude moved, in words. */
+function magnitudeWords(m: MagnitudeChange | null): string {
+  if (!m) return 'changed';
+  if (m.direction === 'sign-changed') return 'sign reversed';
+  if (m.direction === 'same') return 'magnitude ±0 %';
+  const arrow = m.direction === 'larger' ? 'larger' : 'smaller';
+  if (m.percent === null) return `magnitude ${arrow}`;
+  const p = Math.abs(m.percent);
+  return `magnitude ${arrow} by ${p.toFixed(p < 10 ? 1 : 0)} %`;
+}
 
 function Rows({ changes, showSame }: { changes: ValueChange[]; showSame: boolean }) {
   const rows = showSame ? changes : changes.filter((c) => c.change !== 'same');
@@ -13,7 +25,7 @@ function Rows({ changes, showSame }: { changes: ValueChange[]; showSame: boolean
           <td className="py-1.5 pr-3">{c.label}</td>
           <td className={cn('num py-1.5 pr-3 text-right', c.change !== 'same' && 'bg-over/5')}>{fmtValue(c.before, c.unit)}</td>
           <td className={cn('num py-1.5 pr-3 text-right', c.change !== 'same' && 'bg-ok/5 font-medium')}>{fmtValue(c.after, c.unit)}</td>
-          <td className="num py-1.5 text-right text-xs text-muted">{c.change === 'changed' ? fmtRelative(c.relative) : c.change === 'same' ? '' : c.change}</td>
+          <td className="num py-1.5 text-right text-xs text-muted">{c.change === 'changed' ? magnitudeWords(c.magnitude) : c.change === 'same' ? '' : c.change}</td>
         </tr>
       ))}
     </tbody>

@@ -11,9 +11,23 @@ export type ValueChange = {
   before: unknown;
   after: unknown;
   change: ChangeKind;
-  /** (after − before) / |before| for numbers */
-  relative: number | null;
+  /**
+   * For two numbers: which way the magnitude moved and by how much (|after| / |before| − 1). A signed percentage
+   * misleads for negative values (a gain going from −57.3 to −64.5 is a larger gain, not "−13 %").
+   */
+  magnitude: MagnitudeChange | null;
 };
+
+export type MagnitudeChange = { direction: 'larger' | 'smaller' | 'same' | 'sign-changed'; percent: number | null };
+
+export function magnitudeChange(before: number, after: number): MagnitudeChange {
+  if (Math.sign(before) !== Math.sign(after) && before !== 0 && after !== 0) return { direction: 'sign-changed', percent: null };
+  const b = Math.abs(before);
+  const a = Math.abs(after);
+  if (b === 0) return { direction: a === 0 ? 'same' : 'larger', percent: null };
+  const percent = (a / b - 1) * 100;
+  return { direction: Math.abs(percent) < 0.05 ? 'same' : percent > 0 ? 'larger' : 'smaller', percent };
+}
 
 export type StageDiff = {
   stageId: number;
@@ -135,8 +149,8 @@ function valueChange(path: string, label: string, unit: string, before: unknown,
   const b = before === undefined ? null : before;
   const a = after === undefined ? null : after;
   const change: ChangeKind = b === null && a !== null ? 'added' : a === null && b !== null ? 'removed' : same(a, b) ? 'same' : 'changed';
-  const relative = typeof a === 'number' && typeof b === 'number' && b !== 0 ? (a - b) / Math.abs(b) : null;
-  return { path, label, unit, before: b, after: a, change, relative };
+  const magnitude = typeof a === 'number' && typeof b === 'number' ? magnitudeChange(b, a) : null;
+  return { path, label, unit, before: b, after: a, change, magnitude };
 }
 
 function labelFor(map: Record<string, [string, string]>, path: string): [string, string] {

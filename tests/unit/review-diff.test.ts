@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { revisionHash } from '@/lib/review/content';
-import { diffSnapshots, flatten } from '@/lib/review/diff';
+import { diffSnapshots, flatten, magnitudeChange } from '@/lib/review/diff';
 import { canonicalJson, contentHash } from '@/lib/review/hash';
 import type { RevisionSnapshot, SnapshotStage } from '@/lib/review/types';
 
@@ -73,8 +73,9 @@ describe('revision diff', () => {
     expect(s1.inputs).toEqual([expect.objectContaining({ path: 'inputs.bias.cathodeResistor', label: 'Cathode resistor', unit: 'Ω', before: 1500, after: 2200, change: 'changed' })]);
     const ia = s1.results.find((r) => r.path === 'analysis.operatingPoint.plateCurrent')!;
     expect(ia).toMatchObject({ before: 1.0753e-3, after: 0.9e-3, change: 'changed', unit: 'A' });
-    // (0.9 − 1.0753) / 1.0753 = −16.3 %
-    expect(ia.relative).toBeCloseTo(-0.163, 3);
+    // |0.9| / |1.0753| − 1 = −16.3 %: the current became smaller
+    expect(ia.magnitude?.direction).toBe('smaller');
+    expect(ia.magnitude?.percent).toBeCloseTo(-16.3, 1);
     // Gain did not change: listed for the side-by-side view, flagged the same.
     expect(s1.results.find((r) => r.path === 'analysis.smallSignal.gain')!.change).toBe('same');
 
@@ -82,6 +83,15 @@ describe('revision diff', () => {
     const added = diff.stages.find((s) => s.stageId === 3)!;
     expect(added.change).toBe('added');
     expect(added.inputs.every((c) => c.change === 'added')).toBe(true);
+  });
+
+  it('says which way the magnitude of a negative value moved instead of a signed percentage', () => {
+    // a gain going from −57.3 to −64.5 is a larger gain (12.6 % more), not "−13 %"
+    expect(magnitudeChange(-57.3, -64.5)).toEqual({ direction: 'larger', percent: expect.closeTo(12.57, 1) });
+    expect(magnitudeChange(-64.5, -57.3).direction).toBe('smaller');
+    expect(magnitudeChange(-1.5, 1.5)).toEqual({ direction: 'sign-changed', percent: null });
+    expect(magnitudeChange(0, 2)).toEqual({ direction: 'larger', percent: null });
+    expect(magnitudeChange(2, 2).direction).toBe('same');
   });
 
   it('marks every stage unchanged when nothing differs, and treats a first revision as all new', () => {
