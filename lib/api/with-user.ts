@@ -3,6 +3,7 @@ import type { NextRequest } from 'next/server';
 import type { z } from 'zod';
 import { can, type Permission } from '@/lib/auth/policy';
 import { getRequestUser, type CurrentUser } from '@/lib/auth/session';
+import { findUnsafeText, UNSAFE_TEXT_MESSAGE } from '@/lib/validation/text';
 import { ApiError, toErrorResponse } from './errors';
 
 type RouteParams = Record<string, string | string[] | undefined>;
@@ -31,11 +32,21 @@ export async function parseBody<S extends z.ZodType>(req: NextRequest, schema: S
   } catch {
     throw new ApiError('bad_request', 'The request body is not valid JSON.');
   }
+  refuseUnsafeText(raw);
   return schema.parse(raw);
 }
 
 export function parseQuery<S extends z.ZodType>(req: NextRequest, schema: S): z.output<S> {
-  return schema.parse(Object.fromEntries(req.nextUrl.searchParams.entries()));
+  const query = Object.fromEntries(req.nextUrl.searchParams.entries());
+  refuseUnsafeText(query);
+  return schema.parse(query);
+}
+
+// Backstop for fields a schema takes as unknown (records, passthrough): no NUL or unpaired surrogate reaches
+// PostgreSQL, and the answer names the field.
+export function refuseUnsafeText(value: unknown) {
+  const field = findUnsafeText(value);
+  if (field) throw new ApiError('unprocessable_entity', `Invalid input. ${field}: ${UNSAFE_TEXT_MESSAGE}`, { fieldErrors: { [field]: [UNSAFE_TEXT_MESSAGE] } });
 }
 
 export function parseParams<S extends z.ZodType>(params: unknown, schema: S): z.output<S> {

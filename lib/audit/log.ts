@@ -3,11 +3,12 @@ import { QueryTypes } from 'sequelize';
 import { z } from 'zod';
 import { sequelize } from '@/lib/db';
 import { idText } from '@/lib/validation/ids';
+import { text } from '@/lib/validation/text';
 
 export const auditQuerySchema = z.object({
   projectId: idText().optional(),
   userId: idText().optional(),
-  action: z.string().max(60).optional(),
+  action: text().max(60).optional(),
   limit: z.coerce.number().int().min(1).max(500).default(200),
 });
 

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { quantity } from '../validation/quantity';
+import { text } from '../validation/text';
 
 const ohms = (o: { positive?: boolean } = { positive: true }) =>
   o.positive ? quantity('Ω', { positive: true }) : quantity('Ω', { min: 0 });
@@ -25,7 +26,7 @@ export const tubeRatingsSchema = z.object({
 });
 
 const tubeCommon = {
-  name: z.string().max(80).optional(),
+  name: text().max(80).optional(),
   rgi: ohms().optional(),
   capacitances: capacitancesSchema.optional(),
   ratings: tubeRatingsSchema.optional(),

@@ -1,6 +1,8 @@
 import 'server-only';
 import { performance } from 'node:perf_hooks';
 import { ApiError } from '@/lib/api/errors';
+import { refuseUnsafeText } from '@/lib/api/with-user';
+import { isSafeText, UNSAFE_TEXT_MESSAGE } from '@/lib/validation/text';
 import type { CurrentUser } from '@/lib/auth/session';
 import { CurveFitError, fitCurves, fittedCurves, type FitQuality, type FitResult } from '@/lib/calc/fit';
 import { parseCurveCsv } from '@/lib/curves/parse-csv';
@@ -40,6 +42,8 @@ export async function readUpload(req: Request): Promise<{ file: File; fields: Re
   }
   const fields: Record<string, string> = {};
   for (const [k, v] of form.entries()) if (typeof v === 'string') fields[k] = v;
+  refuseUnsafeText(fields);
+  if (!isSafeText(file.name)) throw new ApiError('unprocessable_entity', `The file name: ${UNSAFE_TEXT_MESSAGE}`, { fieldErrors: { file: [UNSAFE_TEXT_MESSAGE] } });
   return { file, fields };
 }
 

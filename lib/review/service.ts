@@ -135,6 +135,7 @@ function stageLines(snapshot: RevisionSnapshot): StageLine[] {
     name: s.name,
     tubeDesignation: s.tubeDesignation,
     ratingProblems: (s.analysis?.ratings ?? []).filter((r) => r.status === 'over').length,
+    notChecked: (s.analysis?.ratings ?? []).filter((r) => r.status === 'not-checked').map((r) => r.label),
     error: s.analysisError?.message ?? null,
   }));
 }

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { text } from './text';
 import { idText } from './ids';
 import { quantity } from './quantity';
 
@@ -14,8 +15,8 @@ export const benchCheckSchema = z
     screenVoltage: optionalVolts(),
     heaterVoltage: optionalVolts(),
     measuredCurrent: z.preprocess((v) => (v === '' || v === undefined ? null : v), quantity('A', { positive: true, max: 5 }).nullable()).optional(),
-    tubeSerial: z.string().trim().max(80, 'Keep the serial or batch under 80 characters.').default(''),
-    notes: z.string().trim().max(4000, 'Keep the notes under 4000 characters.').default(''),
+    tubeSerial: text().trim().max(80, 'Keep the serial or batch under 80 characters.').default(''),
+    notes: text().trim().max(4000, 'Keep the notes under 4000 characters.').default(''),
   })
   .superRefine((v, ctx) => {
     if (v.plateVoltage > v.supplyVoltage * 1.02 + 1) ctx.addIssue({ code: 'custom', path: ['plateVoltage'], message: 'reads above the supply: check the meter range and the probe points' });

@@ -1,8 +1,8 @@
 import { z } from 'zod';
+import { text } from './text';
 
 const optionalText = (max: number) =>
-  z
-    .string()
+  text()
     .trim()
     .max(max)
     .optional()

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { text } from './text';
 import { idNumber, idText, intCounter } from './ids';
 import { quantity } from './quantity';
 import { stageBodySchema } from './stage';
@@ -15,7 +16,7 @@ const key = z
 
 export const supplyNodeSchema = z.object({
   key,
-  name: z.string().trim().min(1, 'Name the node.').max(80),
+  name: text().trim().min(1, 'Name the node.').max(80),
   /** resistance between the previous node (or the raw supply) and this one; 0 for the reservoir node */
   droppingResistor: quantity('Ω', { min: 0 }),
   filterCapacitor: quantity('F', { min: 0 }),
@@ -23,7 +24,7 @@ export const supplyNodeSchema = z.object({
 
 export const heaterSupplySchema = z.object({
   key,
-  name: z.string().trim().min(1, 'Name the heater supply.').max(80),
+  name: text().trim().min(1, 'Name the heater supply.').max(80),
   voltage: quantity('V', { positive: true, max: 200 }),
 });
 
@@ -54,8 +55,8 @@ export const projectSupplySchema = z
 export type ProjectSupply = z.output<typeof projectSupplySchema>;
 export type ProjectSupplyInput = z.input<typeof projectSupplySchema>;
 
-const projectName = z.string().trim().min(1, 'Give the project a name.').max(120, 'Keep the name under 120 characters.');
-const description = z.string().trim().max(4000, 'Keep the description under 4000 characters.');
+const projectName = text().trim().min(1, 'Give the project a name.').max(120, 'Keep the name under 120 characters.');
+const description = text().trim().max(4000, 'Keep the description under 4000 characters.');
 
 export const createProjectSchema = z.object({
   name: projectName,
@@ -94,15 +95,15 @@ export type RenameProjectInput = z.input<typeof renameProjectSchema>;
 const booleanQuery = z.enum(['true', 'false', 'all']).default('false');
 
 export const listProjectsQuerySchema = z.object({
-  search: z.string().trim().max(120).optional(),
+  search: text().trim().max(120).optional(),
   status: z.union([z.enum(PROJECT_STATUSES), z.literal('')]).optional(),
   archived: booleanQuery,
 });
 export type ListProjectsQuery = z.output<typeof listProjectsQuerySchema>;
 
 export const stageMetaSchema = z.object({
-  name: z.string().trim().min(1, 'Name the stage.').max(120),
-  supplyNode: z.string().trim().max(40).nullable().optional(),
+  name: text().trim().min(1, 'Name the stage.').max(120),
+  supplyNode: text().trim().max(40).nullable().optional(),
   position: intCounter().optional(),
   tubeModelId: idNumber().nullable().optional(),
 });
@@ -122,7 +123,7 @@ export const updateStageSchema = z
     supplyNode: stageMetaSchema.shape.supplyNode,
     position: stageMetaSchema.shape.position,
     tubeModelId: stageMetaSchema.shape.tubeModelId,
-    inputs: z.record(z.string(), z.unknown()).optional(),
+    inputs: z.record(text(), z.unknown()).optional(),
   })
   .refine((v) => Object.keys(v).some((k) => k !== 'version'), { message: 'Nothing to change.' });
 export type UpdateStageInput = z.input<typeof updateStageSchema>;

@@ -1,9 +1,10 @@
 import { z } from 'zod';
+import { text } from './text';
 import { idText } from './ids';
 
 export const submitRevisionSchema = z.object({
   /** a note to the reviewers, sent with the notice */
-  note: z.string().trim().max(2000, 'Keep the note under 2000 characters.').default(''),
+  note: text().trim().max(2000, 'Keep the note under 2000 characters.').default(''),
 });
 export type SubmitRevisionInput = z.input<typeof submitRevisionSchema>;
 
@@ -12,7 +13,7 @@ export const DECISIONS = ['approve', 'request-changes'] as const;
 export const decisionSchema = z
   .object({
     decision: z.enum(DECISIONS, { message: 'Choose approve or request changes.' }),
-    comment: z.string().trim().max(5000, 'Keep the comment under 5000 characters.').default(''),
+    comment: text().trim().max(5000, 'Keep the comment under 5000 characters.').default(''),
   })
   .superRefine((v, ctx) => {
     if (v.decision === 'request-changes' && v.comment.length === 0) {

@@ -1,6 +1,7 @@
 // Tube library: the schemas shared by the /api/tubes routes and the tube forms. SI units throughout;
 // numeric fields accept engineering notation ('300', '1M', '2m2') through quantity().
 import { z } from 'zod';
+import { text } from './text';
 import { acceptFitSchema } from './curve-set';
 import { idNumber, idText } from './ids';
 import { quantity } from './quantity';
@@ -14,11 +15,10 @@ export type ModelKind = (typeof MODEL_KINDS)[number];
 export const MODEL_KIND_LABELS: Record<ModelKind, string> = { 'koren-triode': 'Koren triode', 'koren-pentode': 'Koren pentode' };
 
 /** Where a value comes from: a citation, "entered by hand", "from memory", "fitted from curve set N". */
-export const sourceSchema = z.string().trim().min(1, 'Say where this value comes from (e.g. "entered by hand").').max(300);
+export const sourceSchema = text().trim().min(1, 'Say where this value comes from (e.g. "entered by hand").').max(300);
 
 const optionalText = (max: number) =>
-  z
-    .string()
+  text()
     .trim()
     .max(max)
     .optional()
@@ -68,7 +68,7 @@ export const typeCapacitancesSchema = z.object({
 });
 
 export const typicalPointSchema = z.object({
-  label: z.string().trim().min(1, 'Give the point a label.').max(200),
+  label: text().trim().min(1, 'Give the point a label.').max(200),
   plateVoltage: quantity('V', { positive: true }),
   gridVoltage: quantity('V'),
   plateCurrent: quantity('A', { min: 0 }),
@@ -92,7 +92,7 @@ export const korenTriodeParamsSchema = z.object({ ...korenCommon, kvb: quantity(
 export const korenPentodeParamsSchema = z.object({ ...korenCommon, kg2: quantity('', { positive: true }), kvb: quantity('V', { positive: true }) });
 
 const modelCommon = {
-  name: z.string().trim().min(1, 'Give the model a name.').max(120),
+  name: text().trim().min(1, 'Give the model a name.').max(120),
   source: sourceSchema.default('entered by hand'),
   setDefault: z.boolean().optional(),
 };
@@ -106,7 +106,7 @@ export type ModelValues = z.output<typeof modelInputSchema>;
 
 export const updateModelSchema = z
   .object({
-    name: z.string().trim().min(1).max(120).optional(),
+    name: text().trim().min(1).max(120).optional(),
     source: sourceSchema.optional(),
     setDefault: z.literal(true, { message: 'Only true: make another model the default instead of clearing one.' }).optional(),
   })
@@ -114,13 +114,12 @@ export const updateModelSchema = z
 export type UpdateModelInput = z.input<typeof updateModelSchema>;
 
 const aliasesSchema = z
-  .union([z.array(z.string()), z.string()])
+  .union([z.array(text()), text()])
   .transform((v) => (Array.isArray(v) ? v : v.split(/[,;/]/)).map((s) => s.trim()).filter(Boolean))
-  .pipe(z.array(z.string().max(60, 'An alias is at most 60 characters.')).max(12, 'At most 12 aliases.'));
+  .pipe(z.array(text().max(60, 'An alias is at most 60 characters.')).max(12, 'At most 12 aliases.'));
 
 const tubeFields = {
-  designation: z
-    .string()
+  designation: text()
     .trim()
     .min(1, 'Enter the designation, e.g. 12AX7.')
     .max(60)
@@ -132,7 +131,7 @@ const tubeFields = {
   ratings: ratingsSchema.default({}),
   capacitances: typeCapacitancesSchema.prefault({}),
   typicalPoints: z.array(typicalPointSchema).max(20).default([]),
-  notes: z.string().trim().max(5000).default(''),
+  notes: text().trim().max(5000).default(''),
 };
 
 export const createTubeSchema = z.object({ ...tubeFields, model: modelInputSchema.optional() });
@@ -149,7 +148,7 @@ export const updateTubeSchema = z
     ratings: ratingsSchema.optional(),
     capacitances: typeCapacitancesSchema.optional(),
     typicalPoints: z.array(typicalPointSchema).max(20).optional(),
-    notes: z.string().trim().max(5000).optional(),
+    notes: text().trim().max(5000).optional(),
     retired: z.boolean().optional(),
     published: z.boolean().optional(),
   })
@@ -158,7 +157,7 @@ export type UpdateTubeInput = z.input<typeof updateTubeSchema>;
 export type UpdateTubeValues = z.output<typeof updateTubeSchema>;
 
 export const tubeListQuerySchema = z.object({
-  search: z.string().trim().max(100).optional(),
+  search: text().trim().max(100).optional(),
   family: z.enum(TUBE_FAMILIES).optional(),
   includeRetired: z
     .enum(['true', 'false', '1', '0'], { message: 'Use true or false.' })
@@ -170,8 +169,7 @@ export const tubeListQuerySchema = z.object({
 export type TubeListQuery = z.output<typeof tubeListQuerySchema>;
 
 export const compareQuerySchema = z.object({
-  ids: z
-    .string()
+  ids: text()
     .transform((s) => s.split(','))
     .pipe(z.array(idText()).min(2, 'Choose two or three types.').max(3, 'Choose two or three types.')),
   vaMax: quantity('V', { positive: true, max: 2000 }).optional(),

@@ -4,6 +4,7 @@ import { ApiError } from '@/lib/api/errors';
 import { parseParams, withUser } from '@/lib/api/with-user';
 import { addBenchPhoto } from '@/lib/bench/service';
 import { idParamSchema } from '@/lib/validation/auth';
+import { isSafeText, UNSAFE_TEXT_MESSAGE } from '@/lib/validation/text';
 
 export const POST = withUser('bench:write', async (req, { user, params }) => {
   const { id } = parseParams(params, idParamSchema);
@@ -15,5 +16,6 @@ export const POST = withUser('bench:write', async (req, { user, params }) => {
   }
   const file = form.get('file');
   if (!(file instanceof File)) throw new ApiError('unprocessable_entity', 'Choose a photo to upload.', { fieldErrors: { file: ['Choose a photo to upload.'] } });
+  if (!isSafeText(file.name)) throw new ApiError('unprocessable_entity', `The file name: ${UNSAFE_TEXT_MESSAGE}`, { fieldErrors: { file: [UNSAFE_TEXT_MESSAGE] } });
   return NextResponse.json({ photo: await addBenchPhoto(user, id, file) }, { status: 201 });
 });
