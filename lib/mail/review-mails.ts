@@ -3,7 +3,20 @@ import type { MailAttachmentRecord } from '@/models';
 import type { OutgoingMail } from './outbox';
 import { escapeHtml, wrapHtml } from './templates';
 
-export type StageLine = { name: string; tubeDesignation: string; ratingProblems: number; error: string | null };
+/** `notChecked`: labels of the ratings that could not be checked (no limit on file for the type). */
+export type StageLine = { name: string; tubeDesignation: string; ratingProblems: number; notChecked: string[]; error: string | null };
+
+/** "ok" only when every rating was checked and none is over; otherwise say what is over and what was not checked. */
+export function ratingsWords(s: StageLine): { text: string; tone: 'ok' | 'over' | 'unknown' } {
+  if (s.error) return { text: `calculation error: ${s.error}`, tone: 'over' };
+  const parts: string[] = [];
+  if (s.ratingProblems > 0) parts.push(`${s.ratingProblems} rating${s.ratingProblems === 1 ? '' : 's'} over`);
+  if (s.notChecked.length > 0) parts.push(`not checked (no rating on file): ${s.notChecked.join(', ')}`);
+  if (parts.length === 0) return { text: 'all ratings checked and ok', tone: 'ok' };
+  return { text: parts.join('; '), tone: s.ratingProblems > 0 ? 'over' : 'unknown' };
+}
+
+const TONE_COLOUR = { ok: '#2e7d32', over: '#b3261e', unknown: '#8a4a0c' } as const;
 
 const button = (href: string, label: string) =>
   `<p><a href="${escapeHtml(href)}" style="background:#d9822b;color:#fff;padding:8px 14px;border-radius:6px;text-decoration:none">${escapeHtml(label)}</a></p>`;
@@ -13,16 +26,17 @@ function stageTable(stages: StageLine[]) {
   const rows = stages
     .map(
       (s) =>
-        `<tr><td style="padding:4px 8px;border-bottom:1px solid #e6dfd1">${escapeHtml(s.name)}</td><td style="padding:4px 8px;border-bottom:1px solid #e6dfd1;font-family:monospace">${escapeHtml(s.tubeDesignation)}</td><td style="padding:4px 8px;border-bottom:1px solid #e6dfd1">${
-          s.error ? `<span style="color:#b3261e">calculation error: ${escapeHtml(s.error)}</span>` : s.ratingProblems > 0 ? `<span style="color:#b3261e">${s.ratingProblems} rating(s) over</span>` : '<span style="color:#2e7d32">ratings ok</span>'
-        }</td></tr>`,
+        `<tr><td style="padding:4px 8px;border-bottom:1px solid #e6dfd1">${escapeHtml(s.name)}</td><td style="padding:4px 8px;border-bottom:1px solid #e6dfd1;font-family:monospace">${escapeHtml(s.tubeDesignation)}</td><td style="padding:4px 8px;border-bottom:1px solid #e6dfd1">${(() => {
+          const w = ratingsWords(s);
+          return `<span style="color:${TONE_COLOUR[w.tone]}">${escapeHtml(w.text)}</span>`;
+        })()}</td></tr>`,
     )
     .join('');
   return `<table style="border-collapse:collapse;font-size:14px;margin:8px 0"><thead><tr><th align="left" style="padding:4px 8px">Stage</th><th align="left" style="padding:4px 8px">Tube</th><th align="left" style="padding:4px 8px">Ratings</th></tr></thead><tbody>${rows}</tbody></table>`;
 }
 
 function stageText(stages: StageLine[]) {
-  return stages.map((s) => `  - ${s.name} (${s.tubeDesignation}): ${s.error ? `calculation error: ${s.error}` : s.ratingProblems > 0 ? `${s.ratingProblems} rating(s) over` : 'ratings ok'}`).join('\n');
+  return stages.map((s) => `  - ${s.name} (${s.tubeDesignation}): ${ratingsWords(s).text}`).join('\n');
 }
 
 export function revisionSubmittedMail(opts: {
