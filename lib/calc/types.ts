@@ -1,6 +1,8 @@
 import type { ResponsePoint } from './response';
+import type { TransformerAnalysis } from './transformer';
 
 export type { ResponsePoint };
+export type { TransformerAnalysis };
 
 export type OperatingPoint = {
   /** plate to ground, V */
@@ -97,4 +99,6 @@ export type StageAnalysis = {
   ratings: RatingCheck[];
   plot: StagePlot;
   warnings: string[];
+  /** output stages with a transformer entered beyond the ideal one */
+  transformer?: TransformerAnalysis;
 };

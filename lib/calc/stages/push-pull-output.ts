@@ -12,6 +12,7 @@ import { modelEvaluations } from '../models/registry';
 import { solveDenseInPlace } from './newton';
 import { screenParts } from './pentode-amplifier';
 import { checkIdle, EMPTY_PLOT, operatingPointOf, QUICK_SAMPLES, stagePlot, type AnalyzeOptions } from './single-tube';
+import { analyzeTransformer, turnsRatio } from '../transformer';
 
 /*
  * Ideal centre-tapped output transformer, plate-to-plate load Raa, each half-primary N turns.
@@ -322,7 +323,10 @@ export function analyzePushPullOutput(input: PushPullOutputInput, options?: Anal
   }
   const warnings: string[] = [];
   const halfRdc = input.primaryResistance / 2;
-  const raa = input.plateToPlateImpedance;
+  const xf = input.transformer;
+  const nominalRaa = input.plateToPlateImpedance;
+  // the secondary's resistance, referred to the primary, is in series with the reflected speaker load
+  const raa = nominalRaa + (xf ? turnsRatio({ primaryImpedance: nominalRaa, speakerLoad: xf.speakerLoad }) ** 2 * (xf.secondaryResistance ?? 0) : 0);
   const fixed = input.bias.kind === 'fixed';
   const rk = input.bias.kind === 'cathode' ? input.bias.cathodeResistor : 0;
   const bypassed = input.bias.kind === 'cathode' && input.bias.cathodeBypass !== null;
@@ -507,7 +511,15 @@ export function analyzePushPullOutput(input: PushPullOutputInput, options?: Anal
     waveform.input.push(drive[k] ?? 0);
     waveform.output.push(out[k] ?? 0);
   }
+  const transformer = xf
+    ? analyzeTransformer(
+        { primaryImpedance: nominalRaa, primaryResistance: input.primaryResistance, ...xf },
+        zOut - input.primaryResistance,
+        amp > 0 ? h1 / raa : null,
+      )
+    : undefined;
   return {
+    ...(transformer ? { transformer } : {}),
     topology: input.topology,
     operatingPoint: opPoint,
     perTube: [opPoint, { ...opPoint }],
@@ -534,7 +546,8 @@ export function analyzePushPullOutput(input: PushPullOutputInput, options?: Anal
       thd3PointPercent: p3 ? 100 * p3.thd : 0,
       thd5PointPercent: p5 ? 100 * p5.thd : 0,
       dcShift: mean(samples.map((s) => s.i1 + s.i2)) - 2 * op.ia,
-      outputPower: (h1 * h1) / (2 * raa),
+      // into the speaker: the reflected secondary resistance takes its share
+      outputPower: (h1 * h1 * nominalRaa) / (2 * raa * raa),
       headroom: { maxDrive: best[1], limitedBy: best[0], outputSwing: swing },
       waveform,
     },

@@ -5,6 +5,7 @@ import type { StageAnalysis } from '../types';
 import { cathodeBiasParts } from './common-cathode';
 import { screenParts } from './pentode-amplifier';
 import { analyzeSingleTube, type AnalyzeOptions } from './single-tube';
+import { analyzeTransformer, turnsRatio } from '../transformer';
 
 /**
  * Ideal output transformer: the primary's DC resistance carries the whole plate current, the reflected load
@@ -18,7 +19,10 @@ export function analyzeSingleEndedOutput(input: SingleEndedOutputInput, options?
   const bias = cathodeBiasParts(input.bias);
   const screen = model.kind === 'pentode' && input.screen ? screenParts(input.screen, input.supply) : null;
   const rdc = input.primaryResistance;
-  return analyzeSingleTube({
+  const xf = input.transformer;
+  // the secondary's resistance, referred to the primary, is in series with the reflected speaker load
+  const rsecReferred = xf ? turnsRatio({ primaryImpedance: input.primaryImpedance, speakerLoad: xf.speakerLoad }) ** 2 * (xf.secondaryResistance ?? 0) : 0;
+  const result = analyzeSingleTube({
     topology: input.topology,
     tube: input.tube,
     model,
@@ -27,7 +31,7 @@ export function analyzeSingleEndedOutput(input: SingleEndedOutputInput, options?
       model,
       supply: input.supply,
       plateDc: rdc,
-      plateAc: rdc + input.primaryImpedance,
+      plateAc: rdc + input.primaryImpedance + rsecReferred,
       cathodeDc: bias.cathodeDc,
       cathodeAc: bias.cathodeAc,
       gridOffset: bias.gridOffset,
@@ -44,4 +48,14 @@ export function analyzeSingleEndedOutput(input: SingleEndedOutputInput, options?
     warnings: [],
     options,
   });
+  if (xf) {
+    const plateAc = rdc + input.primaryImpedance + rsecReferred;
+    const current = input.drive.amplitude > 0 ? result.largeSignal.outputAmplitude / plateAc : null;
+    result.transformer = analyzeTransformer(
+      { primaryImpedance: input.primaryImpedance, primaryResistance: rdc, ...xf },
+      result.smallSignal.outputImpedance,
+      current,
+    );
+  }
+  return result;
 }
