@@ -25,10 +25,60 @@ export function withUser<P extends RouteParams = RouteParams>(permission: Permis
   };
 }
 
+/** JSON bodies are small (forms); uploads have their own limits. */
+export const MAX_JSON_BYTES = 1024 * 1024;
+
+function megabytes(n: number) {
+  return `${Math.round((n / (1024 * 1024)) * 10) / 10} MB`;
+}
+
+/**
+ * Reads a request body but never more than maxBytes: a declared Content-Length above the limit is refused before
+ * anything is read, and a body without one (chunked) is cut off as soon as it passes the limit. 413 either way.
+ */
+export async function readBodyCapped(req: Request, maxBytes: number, what = 'The request body'): Promise<Buffer> {
+  const tooLarge = () => new ApiError('payload_too_large', `${what} is larger than ${megabytes(maxBytes)}.`);
+  const declared = req.headers.get('content-length');
+  if (declared !== null && /^\d+$/.test(declared.trim()) && Number(declared) > maxBytes) {
+    await req.body?.cancel().catch(() => undefined);
+    throw tooLarge();
+  }
+  if (!req.body) return Buffer.alloc(0);
+  const reader = req.body.getReader();
+  const chunks: Uint8Array[] = [];
+  let total = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    total += value.byteLength;
+    if (total > maxBytes) {
+      await reader.cancel().catch(() => undefined);
+      throw tooLarge();
+    }
+    chunks.push(value);
+  }
+  return Buffer.concat(chunks, total);
+}
+
+/** A multipart body read with readBodyCapped (limit = the largest file plus room for the other fields). */
+export async function readFormCapped(req: Request, maxBytes: number, what: string, badMessage: string): Promise<FormData> {
+  const type = req.headers.get('content-type') ?? '';
+  if (!/^multipart\/form-data\b/i.test(type)) throw new ApiError('unsupported_media_type', badMessage);
+  const bytes = await readBodyCapped(req, maxBytes + 64 * 1024, what);
+  try {
+    return await new Response(new Uint8Array(bytes), { headers: { 'content-type': type } }).formData();
+  } catch {
+    throw new ApiError('bad_request', badMessage);
+  }
+}
+
+const utf8 = new TextDecoder('utf-8', { fatal: true });
+
 export async function parseBody<S extends z.ZodType>(req: NextRequest, schema: S): Promise<z.output<S>> {
+  const bytes = await readBodyCapped(req, MAX_JSON_BYTES);
   let raw: unknown;
   try {
-    raw = await req.json();
+    raw = JSON.parse(utf8.decode(bytes));
   } catch {
     throw new ApiError('bad_request', 'The request body is not valid JSON.');
   }

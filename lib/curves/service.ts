@@ -1,7 +1,7 @@
 import 'server-only';
 import { performance } from 'node:perf_hooks';
 import { ApiError } from '@/lib/api/errors';
-import { refuseUnsafeText } from '@/lib/api/with-user';
+import { readFormCapped, refuseUnsafeText } from '@/lib/api/with-user';
 import { isSafeText, UNSAFE_TEXT_MESSAGE } from '@/lib/validation/text';
 import type { CurrentUser } from '@/lib/auth/session';
 import { CurveFitError, fitCurves, fittedCurves, type FitQuality, type FitResult } from '@/lib/calc/fit';
@@ -29,13 +29,8 @@ function rejectUpload(code: 'unprocessable_entity' | 'payload_too_large' | 'unsu
 }
 
 /** Reads a multipart upload into the fields the DAL needs, with the one error shape for a missing file. */
-export async function readUpload(req: Request): Promise<{ file: File; fields: Record<string, string> }> {
-  let form: FormData;
-  try {
-    form = await req.formData();
-  } catch {
-    throw new ApiError('bad_request', 'Send the upload as multipart/form-data with a "file" field.');
-  }
+export async function readUpload(req: Request, maxBytes = MAX_UPLOAD_BYTES): Promise<{ file: File; fields: Record<string, string> }> {
+  const form = await readFormCapped(req, maxBytes, 'The upload', 'Send the upload as multipart/form-data with a "file" field.');
   const file = form.get('file');
   if (!(file instanceof File)) {
     throw new ApiError('unprocessable_entity', 'Choose a file to upload.', { fieldErrors: { file: ['Choose a file to upload.'] } });
