@@ -16,6 +16,10 @@ const rating = (t: TubeSummary, key: keyof TubeSummary['ratings']) => t.ratings[
 export function TubeLibrary({ tubes }: { tubes: TubeSummary[] }) {
   const router = useRouter();
   const [picked, setPicked] = useState<number[]>([]);
+  // retired types stay on file for old designs but are hidden from the list unless asked for
+  const [showRetired, setShowRetired] = useState(false);
+  const retiredCount = tubes.filter((t) => t.retired).length;
+  const shown = showRetired ? tubes : tubes.filter((t) => !t.retired);
   const toggle = (id: number) => setPicked((p) => (p.includes(id) ? p.filter((x) => x !== id) : p.length >= 3 ? p : [...p, id]));
 
   const ratingColumn = (id: keyof TubeSummary['ratings'], header: string, unit: string): ColumnDef<TubeSummary, unknown> => ({
@@ -100,13 +104,19 @@ export function TubeLibrary({ tubes }: { tubes: TubeSummary[] }) {
   const compare = picked.length >= 2 ? `/tubes/compare?ids=${picked.join(',')}` : null;
   return (
     <DataTable
-      data={tubes}
+      data={shown}
       columns={columns}
       testId="tube-table"
       filterPlaceholder="Search type or alias (e.g. ECC83)…"
       initialSort={[{ id: 'designation', desc: false }]}
       toolbar={
-        <div className="flex items-center gap-2 text-xs text-muted">
+        <div className="flex flex-wrap items-center gap-2 text-xs text-muted">
+          {retiredCount > 0 ? (
+            <label className="mr-2 inline-flex items-center gap-1.5">
+              <input type="checkbox" className="size-4 accent-[var(--heater)]" checked={showRetired} onChange={(e) => setShowRetired(e.target.checked)} data-testid="show-retired" />
+              Show retired types ({retiredCount})
+            </label>
+          ) : null}
           <span>{picked.length === 0 ? 'Tick two or three types to overlay their curves.' : `${picked.length} of 3 picked`}</span>
           <Button size="sm" variant="secondary" disabled={!compare} onClick={() => compare && router.push(compare)}>
             Compare picked

@@ -106,3 +106,22 @@ test('compare overlays two or three types', async ({ page }) => {
   await page.screenshot(shot('tubes-compare-dark'));
   await page.getByRole('button', { name: 'Switch to light theme' }).click();
 });
+
+test('retired types are hidden from the library list until the switch shows them', async ({ page, baseURL }) => {
+  await signIn(page, 'admin');
+  const designation = `RT${Date.now() % 100000}`;
+  const headers = { origin: baseURL!, 'content-type': 'application/json' };
+  const created = await page.request.post('/api/tubes', { headers, data: { designation, family: 'triode' } });
+  expect(created.status()).toBe(201);
+  const { tube } = await created.json();
+  const retired = await page.request.patch(`/api/tubes/${tube.id}`, { headers, data: { retired: true } });
+  expect(retired.status()).toBe(200);
+
+  await page.goto('/tubes');
+  const table = page.getByTestId('tube-table');
+  await expect(table.getByRole('link', { name: '12AX7', exact: true })).toBeVisible();
+  await expect(table.getByRole('link', { name: designation, exact: true })).toHaveCount(0);
+  await page.getByTestId('show-retired').check();
+  await expect(table.getByRole('link', { name: designation, exact: true })).toBeVisible();
+  await expect(table.getByRole('row').filter({ hasText: designation })).toContainText('retired');
+});

@@ -12,7 +12,8 @@ export const metadata: Metadata = { title: 'Tube library' };
 export default async function TubesPage() {
   const user = await requirePageUser('tubes:read');
   const canWrite = can(user.role, 'tubes:write');
-  const { tubes } = await listTubes({ pageSize: 200, includeRetired: can(user.role, 'tubes:edit-published') });
+  // retired types come along for the "show retired" switch; the list hides them by default
+  const { tubes } = await listTubes({ pageSize: 200, includeRetired: true });
   return (
     <>
       <PageHeader
