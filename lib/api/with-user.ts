@@ -3,6 +3,7 @@ import type { NextRequest } from 'next/server';
 import type { z } from 'zod';
 import { can, type Permission } from '@/lib/auth/policy';
 import { getRequestUser, type CurrentUser } from '@/lib/auth/session';
+import { env } from '@/lib/env';
 import { findUnsafeText, UNSAFE_TEXT_MESSAGE } from '@/lib/validation/text';
 import { ApiError, toErrorResponse } from './errors';
 
@@ -14,6 +15,7 @@ type Handler<P extends RouteParams> = (req: NextRequest, ctx: { user: CurrentUse
 export function withUser<P extends RouteParams = RouteParams>(permission: Permission, handler: Handler<P>) {
   return async (req: NextRequest, context: { params: Promise<P> }) => {
     try {
+      assertSameOrigin(req);
       const user = await getRequestUser(req);
       if (!user) throw new ApiError('unauthorized', 'Sign in to use Anodyne.');
       if (!can(user.role, permission)) throw new ApiError('forbidden', `Your role (${user.role}) may not do this.`);
@@ -74,8 +76,52 @@ export async function readFormCapped(req: Request, maxBytes: number, what: strin
 
 const utf8 = new TextDecoder('utf-8', { fatal: true });
 
+const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS']);
+
+/**
+ * State changes only from our own pages: a browser marks a request from another site with Sec-Fetch-Site and
+ * Origin, and either one pointing elsewhere is a 403. Clients that send neither (scripts, tests) are not browsers
+ * acting for a signed-in user, so they pass on to the session check.
+ */
+export function assertSameOrigin(req: NextRequest) {
+  if (SAFE_METHODS.has(req.method.toUpperCase())) return;
+  const site = req.headers.get('sec-fetch-site');
+  if (site && site !== 'same-origin' && site !== 'none') throw new ApiError('forbidden', 'Requests from other sites may not change anything here.');
+  const origin = req.headers.get('origin');
+  if (origin === null) return;
+  const own = new Set([req.nextUrl.origin]);
+  try {
+    own.add(new URL(env.APP_URL).origin);
+  } catch {
+    /* APP_URL is checked at start-up */
+  }
+  const host = req.headers.get('host');
+  if (host) own.add(`${req.nextUrl.protocol}//${host}`);
+  if (!own.has(origin)) throw new ApiError('forbidden', 'Requests from other sites may not change anything here.');
+}
+
+function assertJsonType(req: Request) {
+  const type = (req.headers.get('content-type') ?? '').split(';')[0]!.trim().toLowerCase();
+  if (type !== 'application/json') throw new ApiError('unsupported_media_type', 'Send the body as JSON with Content-Type: application/json.');
+}
+
 export async function parseBody<S extends z.ZodType>(req: NextRequest, schema: S): Promise<z.output<S>> {
+  assertJsonType(req);
   const bytes = await readBodyCapped(req, MAX_JSON_BYTES);
+  return parseJsonBytes(bytes, schema);
+}
+
+/** A body that may be left out (an empty body reads as {}); when sent, the same rules as parseBody. */
+export async function parseOptionalBody<S extends z.ZodType>(req: NextRequest, schema: S): Promise<z.output<S>> {
+  const declared = req.headers.get('content-length');
+  if (!req.body || declared === '0') return schema.parse({});
+  const bytes = await readBodyCapped(req, MAX_JSON_BYTES);
+  if (bytes.toString('utf8').trim() === '') return schema.parse({});
+  assertJsonType(req);
+  return parseJsonBytes(bytes, schema);
+}
+
+function parseJsonBytes<S extends z.ZodType>(bytes: Buffer, schema: S): z.output<S> {
   let raw: unknown;
   try {
     raw = JSON.parse(utf8.decode(bytes));

@@ -9,6 +9,7 @@ import { Project, Stage, TubeType } from '@/models';
 import { recordAudit } from '@/lib/db/audit';
 import { sequelize } from '@/lib/db';
 import { getEngineTube } from '@/lib/tubes/service';
+import { flatten } from '@/lib/review/diff';
 
 export type StageDTO = {
   id: number;
@@ -186,6 +187,13 @@ export async function createStage(actorId: number, projectId: number, raw: Creat
   return (await stageDTOs([stage]))[0]!;
 }
 
+/** Dotted paths of the input values that differ (`bias.cathodeResistor`), compared leaf by leaf. */
+function changedInputPaths(before: unknown, after: unknown): string[] {
+  const b = flatten(before);
+  const a = flatten(after);
+  return [...new Set([...Object.keys(b), ...Object.keys(a)])].filter((k) => JSON.stringify(b[k]) !== JSON.stringify(a[k])).sort();
+}
+
 function staleStage(current: StageDTO): ApiError {
   return new ApiError('conflict', `Someone else saved this stage since you opened it (now version ${current.version}). Reload to see their changes; what you typed is kept.`, {
     details: { current },
@@ -200,37 +208,47 @@ export async function updateStage(actorId: number, id: number, raw: UpdateStageI
     if (stage.version !== patch.version) throw staleStage((await stageDTOs([stage]))[0]!);
     await lockProject(transaction, stage.projectId);
 
+    // Only real changes are saved and audited: a save with nothing different keeps the version and writes no row,
+    // and the audit row names the input fields (dotted paths) whose values differ.
     const changes: Partial<Stage> & Record<string, unknown> = {};
     const changed: string[] = [];
     let body = stage.inputs as unknown as StageBody;
     let tubeModelId = stage.tubeModelId;
     if (patch.inputs) {
-      body = stageBodySchema.parse({ ...(stage.inputs as Record<string, unknown>), ...patch.inputs });
-      if (body.tubeId !== stage.tubeTypeId && patch.tubeModelId === undefined) tubeModelId = null;
-      changes.inputs = body as unknown as Record<string, unknown>;
-      changes.topology = body.topology;
-      changes.tubeTypeId = body.tubeId;
-      changed.push(...Object.keys(patch.inputs));
+      const next = stageBodySchema.parse({ ...(stage.inputs as Record<string, unknown>), ...patch.inputs });
+      const paths = changedInputPaths(stage.inputs, next);
+      if (paths.length) {
+        body = next;
+        if (body.tubeId !== stage.tubeTypeId && patch.tubeModelId === undefined) tubeModelId = null;
+        changes.inputs = body as unknown as Record<string, unknown>;
+        changes.topology = body.topology;
+        changes.tubeTypeId = body.tubeId;
+        changed.push(...paths);
+      }
     }
-    if (patch.tubeModelId !== undefined) tubeModelId = patch.tubeModelId;
-    if (patch.inputs || patch.tubeModelId !== undefined) {
+    if (patch.tubeModelId !== undefined && patch.tubeModelId !== stage.tubeModelId) {
+      tubeModelId = patch.tubeModelId;
+      changed.push('tubeModelId');
+    }
+    if (changes.inputs || tubeModelId !== stage.tubeModelId) {
       changes.tubeModelId = tubeModelId;
       const result = analyseForStorage(await engineInputFor(body, tubeModelId));
       changes.analysis = result.analysis as unknown as Record<string, unknown> | null;
       changes.analysisError = result.analysisError;
-      if (patch.tubeModelId !== undefined) changed.push('tubeModelId');
     }
-    if (patch.name !== undefined) {
+    if (patch.name !== undefined && patch.name !== stage.name) {
       changes.name = patch.name;
       changed.push('name');
     }
-    if (patch.supplyNode !== undefined) {
+    if (patch.supplyNode !== undefined && patch.supplyNode !== stage.supplyNode) {
       changes.supplyNode = patch.supplyNode;
       changed.push('supplyNode');
     }
+    const moves = patch.position !== undefined && patch.position !== stage.position;
+    if (changed.length === 0 && !moves) return stage;
     await stage.update({ ...changes, version: stage.version + 1 }, { transaction });
-    if (patch.position !== undefined && patch.position !== stage.position) {
-      await renumber(transaction, stage.projectId, { id: stage.id, to: patch.position });
+    if (moves) {
+      await renumber(transaction, stage.projectId, { id: stage.id, to: patch.position! });
       changed.push('position');
     }
     const reopened = await reopenProject(transaction, stage.projectId);

@@ -38,7 +38,7 @@ export async function call(handler: AnyHandler, opts: CallOptions = {}) {
   let body: BodyInit | undefined;
   if (opts.form) body = opts.form;
   else if (opts.body !== undefined) {
-    headers.set('content-type', 'application/json');
+    if (!headers.has('content-type')) headers.set('content-type', 'application/json');
     body = typeof opts.body === 'string' ? opts.body : JSON.stringify(opts.body);
   }
   const req = new NextRequest(new URL(opts.path ?? '/', 'http://localhost:3100'), { method: opts.method ?? 'GET', headers, body });

@@ -1,7 +1,7 @@
 // GET /api/projects/{id}/revisions – the project's revisions, newest first
 // POST /api/projects/{id}/revisions – submit the project for review: freezes a hash-stamped revision
 import { NextResponse } from 'next/server';
-import { parseBody, parseParams, withUser } from '@/lib/api/with-user';
+import { parseOptionalBody, parseParams, withUser } from '@/lib/api/with-user';
 import { assertProjectExists } from '@/lib/bench/service';
 import { listRevisions, submitRevision } from '@/lib/review/service';
 import { idParamSchema } from '@/lib/validation/auth';
@@ -15,7 +15,6 @@ export const GET = withUser('reviews:read', async (_req, { params }) => {
 
 export const POST = withUser('revisions:submit', async (req, { user, params }) => {
   const { id } = parseParams(params, idParamSchema);
-  const text = await req.text();
-  const body = submitRevisionSchema.parse(text.trim() ? JSON.parse(text) : {});
+  const body = await parseOptionalBody(req, submitRevisionSchema);
   return NextResponse.json({ revision: await submitRevision(user, id, body) }, { status: 201 });
 });
