@@ -1,9 +1,45 @@
 import { withAuth } from 'next-auth/middleware';
+import { NextResponse, type NextFetchEvent, type NextRequest } from 'next/server';
+import { API_CSP, applySecurityHeaders, contentSecurityPolicy, makeNonce } from '@/lib/security/headers';
+
+const dev = process.env.NODE_ENV === 'development';
+
+function isHttps(req: NextRequest): boolean {
+  return req.nextUrl.protocol === 'https:' || (process.env.APP_URL ?? '').startsWith('https://');
+}
+
+// Every page gets a fresh CSP nonce: Next reads it from the request's Content-Security-Policy header and puts it
+// on its own inline scripts; the root layout passes it on (next-themes' script).
+function secured(req: NextRequest): NextResponse {
+  const https = isHttps(req);
+  if (req.nextUrl.pathname.startsWith('/api/')) {
+    const res = NextResponse.next();
+    applySecurityHeaders(res.headers, API_CSP, https);
+    return res;
+  }
+  const nonce = makeNonce();
+  const csp = contentSecurityPolicy(nonce, { dev, https });
+  const requestHeaders = new Headers(req.headers);
+  requestHeaders.set('x-nonce', nonce);
+  requestHeaders.set('Content-Security-Policy', csp);
+  const res = NextResponse.next({ request: { headers: requestHeaders } });
+  applySecurityHeaders(res.headers, csp, https);
+  return res;
+}
 
 // Early redirect for signed-out visitors; the real checks (role, active account) run again in every
 // page and route handler.
-export default withAuth({ pages: { signIn: '/sign-in' } });
+const signedIn = withAuth((req) => secured(req), { pages: { signIn: '/sign-in' } });
+const PUBLIC = /^\/(api|sign-in|invitations|forbidden)(\/|$)/;
+
+export default async function proxy(req: NextRequest, event: NextFetchEvent) {
+  if (PUBLIC.test(req.nextUrl.pathname)) return secured(req);
+  const res = await signedIn(req as Parameters<typeof signedIn>[0], event);
+  // a redirect to the sign-in page carries the headers too
+  if (res instanceof Response && !res.headers.has('Content-Security-Policy')) applySecurityHeaders(res.headers, API_CSP, isHttps(req));
+  return res;
+}
 
 export const config = {
-  matcher: ['/((?!api|_next|fonts|favicon.ico|icon.svg|sign-in|invitations|forbidden).*)'],
+  matcher: ['/((?!_next/static|_next/image|fonts|favicon.ico|icon.svg).*)'],
 };

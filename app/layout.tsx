@@ -1,4 +1,5 @@
 import type { Metadata } from 'next';
+import { headers } from 'next/headers';
 import { mono, monoGreek, sans, sansGreek } from './fonts';
 import { Providers } from './providers';
 import './globals.css';
@@ -9,11 +10,13 @@ export const metadata: Metadata = {
   icons: { icon: [{ url: '/favicon.ico', sizes: '16x16 32x32 48x48' }, { url: '/icon.svg', type: 'image/svg+xml' }] },
 };
 
-export default function RootLayout({ children }: { children: React.ReactNode }) {
+// Reading the request's CSP nonce makes every page render per request, which a nonce needs.
+export default async function RootLayout({ children }: { children: React.ReactNode }) {
+  const nonce = (await headers()).get('x-nonce') ?? undefined;
   return (
     <html lang="en" suppressHydrationWarning className={`${sans.variable} ${sansGreek.variable} ${mono.variable} ${monoGreek.variable}`}>
       <body className="min-h-screen font-sans antialiased">
-        <Providers>{children}</Providers>
+        <Providers nonce={nonce}>{children}</Providers>
       </body>
     </html>
   );

@@ -37,9 +37,13 @@ export type RevisionDetail = RevisionSummary & {
   snapshot: RevisionSnapshot;
   /** the stored hash matches the stored snapshot */
   hashVerified: boolean;
-  /** the last approved revision before this one, the diff's left-hand side */
-  base: { id: number; number: number; contentHash: string } | null;
+  /** the earlier revision the diff compares with (the previous one unless another was chosen) */
+  base: { id: number; number: number; contentHash: string; state: RevisionState } | null;
+  /** every earlier revision of the project, newest first (the reviewer may compare with any) */
+  earlier: { id: number; number: number; state: RevisionState }[];
   diff: RevisionDiff;
+  /** waiting for a decision and the project has changed since submission: what changed (submitted → now) */
+  movedOn: { diff: RevisionDiff } | null;
 };
 
 type SummaryRow = {
@@ -107,18 +111,44 @@ async function summaryById(id: number): Promise<RevisionSummary & { snapshot: Re
   return { ...toSummary(r), snapshot: r.snapshot };
 }
 
-export async function getRevision(id: number): Promise<RevisionDetail> {
+/** The project as it stands now, frozen the way a submission freezes it (for "moved on since submission"). */
+async function liveSnapshot(projectId: number): Promise<RevisionSnapshot> {
+  const { watchers: _w, ...rest } = (await getProject(projectId)) as ProjectDetail & { watchers?: unknown };
+  return toPlainJson({ ...rest, status: 'in-review' }) as unknown as RevisionSnapshot;
+}
+
+/**
+ * A revision with its diff against an earlier revision of the same project: `compareWith` (a revision number), by
+ * default the previous one whatever its state, so a resubmission after "changes requested" shows what was done.
+ * A revision still waiting for a decision also says whether the project has moved on since it was submitted.
+ */
+export async function getRevision(id: number, opts: { compareWith?: number } = {}): Promise<RevisionDetail> {
   const rev = await summaryById(id);
-  const base = await Revision.findOne({
-    where: { projectId: rev.projectId, state: 'approved', number: { [Op.lt]: rev.number } },
+  const earlier = await Revision.findAll({
+    where: { projectId: rev.projectId, number: { [Op.lt]: rev.number } },
     order: [['number', 'DESC']],
+    attributes: ['id', 'number', 'state', 'contentHash'],
   });
+  if (opts.compareWith !== undefined && !earlier.some((r) => r.number === opts.compareWith)) {
+    throw new ApiError('unprocessable_entity', `Revision ${rev.number} can be compared only with an earlier revision of the same project.`, {
+      fieldErrors: { compare: [`Choose one of: ${earlier.map((r) => r.number).join(', ') || 'none (this is the first revision)'}.`] },
+    });
+  }
+  const pick = opts.compareWith !== undefined ? earlier.find((r) => r.number === opts.compareWith)! : earlier[0];
+  const base = pick ? await Revision.findByPk(pick.id) : null;
   const baseSnapshot = base ? (base.snapshot as unknown as RevisionSnapshot) : null;
+  let movedOn: RevisionDetail['movedOn'] = null;
+  if (rev.state === 'submitted') {
+    const live = await liveSnapshot(rev.projectId).catch(() => null);
+    if (live && revisionHash(live) !== rev.contentHash) movedOn = { diff: diffSnapshots(rev.snapshot, live, rev.number) };
+  }
   return {
     ...rev,
     hashVerified: revisionHash(rev.snapshot) === rev.contentHash,
-    base: base ? { id: base.id, number: base.number, contentHash: base.contentHash } : null,
+    base: base ? { id: base.id, number: base.number, contentHash: base.contentHash, state: base.state } : null,
+    earlier: earlier.map((r) => ({ id: r.id, number: r.number, state: r.state })),
     diff: diffSnapshots(baseSnapshot, rev.snapshot, base?.number ?? null),
+    movedOn,
   };
 }
 
