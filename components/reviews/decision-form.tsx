@@ -9,7 +9,7 @@ import { Textarea } from '@/components/ui/input';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import { decisionSchema } from '@/lib/validation/review';
 
-export function DecisionForm({ revisionId, number, blocker }: { revisionId: number; number: number; blocker: string | null }) {
+export function DecisionForm({ revisionId, number, blocker, movedOn = null }: { revisionId: number; number: number; blocker: string | null; movedOn?: string | null }) {
   const router = useRouter();
   const [comment, setComment] = useState('');
   const [fieldError, setFieldError] = useState<string | null>(null);
@@ -45,12 +45,23 @@ export function DecisionForm({ revisionId, number, blocker }: { revisionId: numb
             {blocker}
           </p>
         ) : null}
+        {movedOn && !blocker ? (
+          <p role="note" className="rounded-md border border-near/40 bg-near/10 px-3 py-2 text-sm" data-testid="decision-moved-on">
+            {movedOn} A decision applies to revision {number} as it was submitted, not to the project as it is now.
+          </p>
+        ) : null}
         <Field label="Comment (required when asking for changes)" htmlFor="decision-comment" error={fieldError ?? undefined}>
           <Textarea id="decision-comment" rows={5} value={comment} disabled={!!blocker} onChange={(e) => setComment(e.target.value)} aria-invalid={!!fieldError} />
         </Field>
         {error ? (
           <p role="alert" className="text-sm text-over">
             {error}
+          </p>
+        ) : null}
+        {busy ? (
+          <p role="status" aria-live="polite" className="flex items-center gap-2 text-sm text-muted" data-testid="decision-progress">
+            <span className="inline-block size-3 animate-spin rounded-full border-2 border-heater border-t-transparent" aria-hidden />
+            Recording the decision and rendering the PDF report for the mail; this takes a few seconds…
           </p>
         ) : null}
         <div className="flex flex-wrap gap-2">

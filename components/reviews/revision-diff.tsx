@@ -32,20 +32,20 @@ function Rows({ changes, showSame }: { changes: ValueChange[]; showSame: boolean
   );
 }
 
-function Head({ base, number }: { base: string; number: number }) {
+function Head({ base, number, after }: { base: string; number: number; after?: string }) {
   return (
     <thead className="border-b border-rule text-left text-xs uppercase tracking-wide text-muted">
       <tr>
         <th className="py-1.5 pr-3 font-medium">Quantity</th>
         <th className="py-1.5 pr-3 text-right font-medium">{base}</th>
-        <th className="py-1.5 pr-3 text-right font-medium">Revision {number}</th>
+        <th className="py-1.5 pr-3 text-right font-medium">{after ?? `Revision ${number}`}</th>
         <th className="py-1.5 text-right font-medium">Change</th>
       </tr>
     </thead>
   );
 }
 
-function StageBlock({ s, base, number }: { s: StageDiff; base: string; number: number }) {
+function StageBlock({ s, base, number, after }: { s: StageDiff; base: string; number: number; after?: string }) {
   return (
     <section className="space-y-2" data-testid={`diff-stage-${s.stageId}`} data-change={s.change}>
       <h3 className="flex flex-wrap items-center gap-2 text-sm font-semibold">
@@ -59,7 +59,7 @@ function StageBlock({ s, base, number }: { s: StageDiff; base: string; number: n
       ) : (
         <div className="overflow-x-auto">
           <table className="w-full min-w-[520px] text-sm">
-            <Head base={base} number={number} />
+            <Head base={base} number={number} after={after} />
             {s.inputs.length ? (
               <>
                 <tbody>
@@ -83,15 +83,15 @@ function StageBlock({ s, base, number }: { s: StageDiff; base: string; number: n
   );
 }
 
-export function RevisionDiffView({ diff, number }: { diff: RevisionDiff; number: number }) {
-  const base = diff.base ? `Approved rev. ${diff.base.number}` : 'Before';
+export function RevisionDiffView({ diff, number, title, afterLabel }: { diff: RevisionDiff; number: number; title?: string; afterLabel?: string }) {
+  const base = diff.base ? `Revision ${diff.base.number}` : 'Before';
   if (!diff.base) {
     return (
       <Card>
         <CardHeader title="What changed" />
         <CardBody data-testid="revision-diff">
           <p className="text-sm">
-            No revision of this project has been approved yet, so there is nothing to compare with: everything in revision {number} is new. Its {diff.stages.length} stage
+            This is the project&apos;s first revision, so there is nothing earlier to compare with: everything in revision {number} is new. Its {diff.stages.length} stage
             {diff.stages.length === 1 ? '' : 's'} ({diff.stages.map((s) => s.name).join(', ')}) are shown below with their frozen inputs and results.
           </p>
         </CardBody>
@@ -101,7 +101,7 @@ export function RevisionDiffView({ diff, number }: { diff: RevisionDiff; number:
   return (
     <Card>
       <CardHeader
-        title={diff.base ? `What changed since approved revision ${diff.base.number}` : 'First revision: nothing approved to compare with'}
+        title={title ?? `What changed since revision ${diff.base.number}`}
         actions={
           <span className="text-xs text-muted">
             {diff.counts.changed} changed · {diff.counts.added} added · {diff.counts.removed} removed · {diff.counts.unchanged} unchanged
@@ -114,14 +114,14 @@ export function RevisionDiffView({ diff, number }: { diff: RevisionDiff; number:
             <h3 className="text-sm font-semibold">Project</h3>
             <div className="overflow-x-auto">
               <table className="w-full min-w-[520px] text-sm">
-                <Head base={base} number={number} />
+                <Head base={base} number={number} after={afterLabel} />
                 <Rows changes={diff.project} showSame={false} />
               </table>
             </div>
           </section>
         ) : null}
         {diff.stages.map((s) => (
-          <StageBlock key={s.stageId} s={s} base={base} number={number} />
+          <StageBlock key={s.stageId} s={s} base={base} number={number} after={afterLabel} />
         ))}
       </CardBody>
     </Card>

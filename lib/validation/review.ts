@@ -28,3 +28,8 @@ export const revisionListQuerySchema = z.object({
   state: z.enum(REVISION_STATES).optional(),
   projectId: idText().optional(),
 });
+
+/** GET /api/revisions/{id}?compare=N: the earlier revision number to compare with (the previous one by default). */
+export const revisionViewQuerySchema = z.object({
+  compare: idText('Revision number: a whole number such as 3.').optional(),
+});
