@@ -1,6 +1,16 @@
 import * as React from 'react';
 import { cn } from '@/lib/utils';
 
+/**
+ * The message under a field always names the field ("Plate resistor: required"), so it still makes sense when read
+ * alone (a screen reader's alert, a list of problems). A message that already starts with the label is kept.
+ */
+export function fieldMessage(label: string, message: string): string {
+  const name = label.replace(/\s*\([^)]*\)\s*$/, '').trim();
+  if (!name || message.toLowerCase().startsWith(name.toLowerCase())) return message;
+  return `${name}: ${message}`;
+}
+
 // A labelled form row: the unit sits beside the control, the explanation of a wrong value under it.
 export function Field({
   label,
@@ -30,7 +40,7 @@ export function Field({
       </div>
       {error ? (
         <p role="alert" id={`${htmlFor}-error`} className="text-xs text-over">
-          {error}
+          {fieldMessage(label, error)}
         </p>
       ) : hint ? (
         <p className="text-xs text-muted">{hint}</p>

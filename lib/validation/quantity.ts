@@ -29,6 +29,10 @@ export function quantity(unit: string, options: QuantityOptions = {}) {
         ctx.addIssue({ code: 'custom', message: 'must be a finite number' });
         return z.NEVER;
       }
+      if (value.trim() === '') {
+        ctx.addIssue({ code: 'custom', message: 'required' });
+        return z.NEVER;
+      }
       const parsed = parseEng(value);
       if (parsed === null) {
         ctx.addIssue({ code: 'custom', message: `'${value}' is not a number: use e.g. 4k7 or 4700` });
