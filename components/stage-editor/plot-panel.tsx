@@ -12,7 +12,7 @@ import { Button } from '@/components/ui/button';
 import type { StageAnalysis } from '@/lib/calc';
 import { toCsv } from '@/lib/stage-form';
 import { formatEng } from '@/lib/units';
-import { Segmented } from './segmented';
+import { Segmented, tabPanelProps } from './segmented';
 
 export type SecondaryView = 'transfer' | 'waveform' | 'spectrum' | 'response';
 const VIEWS: { value: SecondaryView; label: string }[] = [
@@ -91,11 +91,12 @@ export function PlotPanel({ analysis, stale, fileStem }: { analysis: StageAnalys
       </div>
       <div className="border-t border-rule pt-3">
         <div className="mb-2 flex flex-wrap items-center justify-between gap-2">
-          <Segmented label="Other views" value={view} options={VIEWS} onChange={setView} />
+          <Segmented label="Other views" value={view} options={VIEWS} onChange={setView} idBase="stage-views" />
           <Button type="button" variant="ghost" size="sm" onClick={() => download(secondaryCsv(analysis, view), fileStem)}>
             Download CSV
           </Button>
         </div>
+        <div {...tabPanelProps('stage-views', view)} className="focus-visible:outline-2 focus-visible:outline-heater">
         {view === 'transfer' ? (
           <TransferChart points={analysis.plot.transfer} biasPoint={{ vg: op.gridCathodeVoltage, ia: op.plateCurrent }} plateVoltage={op.plateCathodeVoltage} stale={stale} />
         ) : view === 'waveform' ? (
@@ -105,6 +106,7 @@ export function PlotPanel({ analysis, stale, fileStem }: { analysis: StageAnalys
         ) : (
           <ResponseChart points={analysis.smallSignal.response} lowCutoff={analysis.smallSignal.lowCutoff} highCutoff={analysis.smallSignal.highCutoff} stale={stale} />
         )}
+        </div>
       </div>
     </div>
   );

@@ -5,7 +5,7 @@ export const Input = React.forwardRef<HTMLInputElement, React.InputHTMLAttribute
   <input
     ref={ref}
     className={cn(
-      'h-9 w-full rounded-md border border-rule bg-sheet px-2.5 text-sm text-ink placeholder:text-muted focus:border-heater focus:outline-none focus:ring-2 focus:ring-heater/30 aria-[invalid=true]:border-over',
+      'h-9 w-full rounded-md border border-rule bg-sheet px-2.5 text-sm text-ink placeholder:text-muted focus:border-heater focus:outline-none focus:ring-2 focus:ring-heater/30 aria-[invalid=true]:border-over disabled:cursor-not-allowed disabled:border-dashed disabled:bg-transparent read-only:border-dashed read-only:bg-transparent read-only:focus:ring-0',
       className,
     )}
     {...props}
@@ -16,7 +16,7 @@ Input.displayName = 'Input';
 export const Select = React.forwardRef<HTMLSelectElement, React.SelectHTMLAttributes<HTMLSelectElement>>(({ className, ...props }, ref) => (
   <select
     ref={ref}
-    className={cn('h-9 w-full rounded-md border border-rule bg-sheet px-2 text-sm text-ink focus:border-heater focus:outline-none focus:ring-2 focus:ring-heater/30', className)}
+    className={cn('h-9 w-full rounded-md border border-rule bg-sheet px-2 text-sm text-ink focus:border-heater focus:outline-none focus:ring-2 focus:ring-heater/30 disabled:cursor-not-allowed disabled:border-dashed disabled:bg-transparent disabled:appearance-none', className)}
     {...props}
   />
 ));
@@ -25,7 +25,7 @@ Select.displayName = 'Select';
 export const Textarea = React.forwardRef<HTMLTextAreaElement, React.TextareaHTMLAttributes<HTMLTextAreaElement>>(({ className, ...props }, ref) => (
   <textarea
     ref={ref}
-    className={cn('min-h-20 w-full rounded-md border border-rule bg-sheet px-2.5 py-2 text-sm text-ink focus:border-heater focus:outline-none focus:ring-2 focus:ring-heater/30', className)}
+    className={cn('min-h-20 w-full rounded-md border border-rule bg-sheet px-2.5 py-2 text-sm text-ink focus:border-heater focus:outline-none focus:ring-2 focus:ring-heater/30 disabled:cursor-not-allowed disabled:border-dashed disabled:bg-transparent read-only:border-dashed read-only:bg-transparent read-only:focus:ring-0', className)}
     {...props}
   />
 ));
