@@ -21,7 +21,8 @@ export default defineConfig({
   webServer: {
     command: `node node_modules/next/dist/bin/next start -p ${port}`,
     url: `http://localhost:${port}/sign-in`,
-    reuseExistingServer: false,
+    // npm test starts the production server itself (to keep its log) and sets E2E_REUSE_SERVER=1
+    reuseExistingServer: process.env.E2E_REUSE_SERVER === '1',
     timeout: 60_000,
     stdout: 'ignore',
     stderr: 'pipe',

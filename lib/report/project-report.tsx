@@ -10,7 +10,15 @@ import { formatEng } from '@/lib/units';
 import { inputRows, LIMIT_WORDS, TOPOLOGY_LABELS } from './labels';
 
 export type ReportOptions = {
-  revision?: { number: number; contentHash: string; state: string };
+  /** a frozen revision: its stamp, who submitted it and, once decided, the decision (the revision summary) */
+  revision?: {
+    number: number;
+    contentHash: string;
+    state: string;
+    submittedBy?: string | null;
+    submittedAt?: string | null;
+    decision?: { decision: 'approve' | 'request-changes'; reviewer: string; comment: string; at: string } | null;
+  };
   /** the chain + supply solution, when the caller has it (the report route does) */
   chain?: ChainResult | null;
   generatedAt?: Date;
@@ -300,6 +308,17 @@ function ChainSection({ chain }: { chain: ChainResult }) {
   );
 }
 
+function Footer({ name }: { name: string }) {
+  return (
+    <View style={s.footer} fixed>
+      <Text>{t(`Anodyne · ${name}`)}</Text>
+      <Text render={({ pageNumber, totalPages }) => `${pageNumber} / ${totalPages}`} />
+    </View>
+  );
+}
+
+const stamp = (iso: string) => iso.slice(0, 16).replace('T', ' ');
+
 export function ProjectReport({ project, opts = {} }: { project: ProjectDetail; opts?: ReportOptions }) {
   const when = (opts.generatedAt ?? new Date()).toISOString().slice(0, 16).replace('T', ' ');
   const rev = opts.revision;
@@ -312,6 +331,13 @@ export function ProjectReport({ project, opts = {} }: { project: ProjectDetail; 
         </Text>
         {rev ? <Text style={s.muted}>{t(`Revision ${rev.number} (${rev.state}) · content hash (SHA-256)`)}</Text> : null}
         {rev ? <Text style={[s.muted, { fontSize: 7 }]}>{rev.contentHash}</Text> : null}
+        {rev?.submittedAt ? <Text style={s.muted}>{t(`Submitted by ${rev.submittedBy ?? 'unknown'} on ${stamp(rev.submittedAt)} UTC`)}</Text> : null}
+        {rev?.decision ? (
+          <Text style={{ marginTop: 4, fontWeight: 'bold', color: rev.decision.decision === 'approve' ? STATUS_COLOUR.ok : STATUS_COLOUR.near }}>
+            {t(`${rev.decision.decision === 'approve' ? 'Approved' : 'Changes requested'} by ${rev.decision.reviewer} on ${stamp(rev.decision.at)} UTC`)}
+          </Text>
+        ) : null}
+        {rev?.decision?.comment ? <Text>{t(`Reviewer’s comment: ${rev.decision.comment}`)}</Text> : null}
         {project.description ? <Text style={{ marginTop: 6 }}>{t(project.description)}</Text> : null}
         <View style={s.caution}>
           <Text>
@@ -340,15 +366,16 @@ export function ProjectReport({ project, opts = {} }: { project: ProjectDetail; 
         />
         {chain(opts) ? <ChainSection chain={opts.chain!} /> : null}
         <SupplySection project={project} chain={opts.chain} />
-        <View break />
-        {project.stages.map((st, i) => (
-          <StageSection key={st.id} stage={st} index={i} chain={opts.chain} />
-        ))}
-        <View style={s.footer} fixed>
-          <Text>{t(`Anodyne · ${project.name}`)}</Text>
-          <Text render={({ pageNumber, totalPages }) => `${pageNumber} / ${totalPages}`} />
-        </View>
+        <Footer name={project.name} />
       </Page>
+      {/* One page (or more, wrapping) per stage: laying out many stages inside a single page grows the layout work
+          with the square of the stage count and, past a dozen stages, misplaces content off the page. */}
+      {project.stages.map((st) => (
+        <Page key={st.id} size="A4" style={[s.page, { fontFamily }]} wrap>
+          <StageSection stage={st} index={0} chain={opts.chain} />
+          <Footer name={project.name} />
+        </Page>
+      ))}
     </Document>
   );
 }

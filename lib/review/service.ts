@@ -1,11 +1,11 @@
 import 'server-only';
 import { Op, QueryTypes } from 'sequelize';
-import { renderRevisionPdf, type RevisionPdfMeta } from '@/components/reviews/revision-report-pdf';
 import { ApiError } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
 import { env } from '@/lib/env';
 import { deliverSoon, enqueueMail } from '@/lib/mail/outbox';
-import { renderProjectReportPdf } from '@/lib/report/project-report';
+import { renderReportPdf } from '@/lib/report/pdf';
+import type { ReportOptions } from '@/lib/report/project-report';
 import { revisionDecisionMail, revisionSubmittedMail, type StageLine } from '@/lib/mail/review-mails';
 import { revisionHash } from '@/lib/review/content';
 import { diffSnapshots, type RevisionDiff } from '@/lib/review/diff';
@@ -221,22 +221,25 @@ export async function submitRevision(actor: CurrentUser, projectId: number, raw:
   return getRevision(result.id);
 }
 
-async function reportAttachment(rev: RevisionSummary & { snapshot: RevisionSnapshot }, decision: RevisionPdfMeta['decision']): Promise<MailAttachmentRecord | null> {
+type RevisionDecisionMeta = NonNullable<NonNullable<ReportOptions['revision']>['decision']>;
+
+/** The design report drawn from the frozen snapshot and stamped with the revision, its submitter and its decision. */
+async function revisionReport(rev: RevisionSummary & { snapshot: RevisionSnapshot }, decision: RevisionDecisionMeta | null) {
+  const state = decision ? (decision.decision === 'approve' ? 'approved' : 'changes-requested') : rev.state;
+  const pdf = await renderReportPdf({ ...rev.snapshot, watchers: [] } as unknown as ProjectDetail, {
+    revision: { number: rev.number, contentHash: rev.contentHash, state, submittedBy: rev.submittedBy?.displayName ?? null, submittedAt: rev.submittedAt, decision },
+  });
+  const safe = rev.projectName.replace(/[^A-Za-z0-9]+/g, '-').replace(/^-|-$/g, '').toLowerCase() || 'project';
+  return { pdf, filename: `anodyne-${safe}-revision-${rev.number}.pdf` };
+}
+
+async function reportAttachment(rev: RevisionSummary & { snapshot: RevisionSnapshot }, decision: RevisionDecisionMeta | null): Promise<MailAttachmentRecord | null> {
   try {
-    const state = decision ? (decision.decision === 'approve' ? 'approved' : 'changes-requested') : rev.state;
-    let pdf: Buffer;
-    try {
-      // The project's design report, rendered from the frozen snapshot and stamped with the revision.
-      pdf = await renderProjectReportPdf({ ...rev.snapshot, watchers: [] } as unknown as ProjectDetail, { revision: { number: rev.number, contentHash: rev.contentHash, state } });
-    } catch (err) {
-      console.error('[revisions] project report failed; sending the compact revision report', err);
-      pdf = await renderRevisionPdf(rev.snapshot, { number: rev.number, contentHash: rev.contentHash, submittedBy: rev.submittedBy?.displayName ?? null, submittedAt: rev.submittedAt, decision });
-    }
-    const safe = rev.projectName.replace(/[^A-Za-z0-9]+/g, '-').replace(/^-|-$/g, '').toLowerCase() || 'project';
-    return { filename: `anodyne-${safe}-revision-${rev.number}.pdf`, contentType: 'application/pdf', contentBase64: pdf.toString('base64') };
+    const { pdf, filename } = await revisionReport(rev, decision);
+    return { filename, contentType: 'application/pdf', contentBase64: pdf.toString('base64') };
   } catch (err) {
     // The decision must not wait on the report: it is recorded and mailed without the attachment.
-    console.error('[revisions] report rendering failed', err);
+    console.error('[revisions] report rendering failed', err instanceof Error ? err.message : err);
     return null;
   }
 }
@@ -317,10 +320,9 @@ export async function withdrawRevision(actor: CurrentUser, revisionId: number): 
 /** The PDF of a revision as frozen, with its decision if there is one. */
 export async function revisionPdf(revisionId: number) {
   const rev = await summaryById(revisionId);
-  const attachment = await reportAttachment(
+  const { pdf, filename } = await revisionReport(
     rev,
     rev.decision ? { decision: rev.decision.decision, reviewer: rev.decision.reviewer?.displayName ?? '?', comment: rev.decision.comment, at: rev.decision.createdAt } : null,
   );
-  if (!attachment) throw new ApiError('internal_error', 'The report could not be rendered.');
-  return { body: Buffer.from(attachment.contentBase64, 'base64'), fileName: attachment.filename };
+  return { body: pdf, fileName: filename };
 }

@@ -10,6 +10,7 @@ import { recordAudit } from '@/lib/db/audit';
 import { sequelize } from '@/lib/db';
 import { getEngineTube } from '@/lib/tubes/service';
 import { flatten } from '@/lib/review/diff';
+import { MAX_STAGES_PER_PROJECT } from './limits';
 
 export type StageDTO = {
   id: number;
@@ -155,6 +156,9 @@ export async function createStage(actorId: number, projectId: number, raw: Creat
   const stage = await sequelize.transaction(async (transaction) => {
     await lockProject(transaction, projectId);
     const count = await Stage.count({ where: { projectId }, transaction });
+    if (count >= MAX_STAGES_PER_PROJECT) {
+      throw new ApiError('unprocessable_entity', `A project holds at most ${MAX_STAGES_PER_PROJECT} stages; this one is full. Start a new project for further stages.`);
+    }
     const at = position && position <= count ? position : count + 1;
     const created = await Stage.create(
       {

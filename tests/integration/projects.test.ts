@@ -13,7 +13,7 @@ import * as stageRoute from '@/app/api/stages/[id]/route';
 import type { ChainResult } from '@/lib/calc/chain';
 import type { ProjectDetail } from '@/lib/projects/service';
 import type { StageDTO } from '@/lib/stages/service';
-import { renderProjectReportPdf } from '@/lib/report/project-report';
+import { renderReportPdf } from '@/lib/report/pdf';
 import { AuditEvent, Project, TubeModel, TubeType } from '@/models';
 import { call } from '../support/api';
 
@@ -292,7 +292,7 @@ describe('chain, curves and report', () => {
   it('renders from a plain ProjectDetail with a revision stamp, without the database', async () => {
     const detail = (await call(projectRoute.GET, { as: 'designer', params: { id: String(project.id) } })).json.project as ProjectDetail;
     const plain = JSON.parse(JSON.stringify(detail)) as ProjectDetail;
-    const buf = await renderProjectReportPdf(plain, { revision: { number: 3, contentHash: 'abc123def456', state: 'submitted' } });
+    const buf = await renderReportPdf(plain, { revision: { number: 3, contentHash: 'abc123def456', state: 'submitted' } });
     const text = (await new PDFParse({ data: new Uint8Array(buf) }).getText()).text;
     expect(text).toContain('Revision 3 (submitted)');
     expect(text).toContain('abc123def456');

@@ -112,6 +112,10 @@ describe('revisions: submit, review, decide', () => {
     const rev = await Revision.findByPk(first);
     expect(text).toContain('V1 input');
     expect(text.replace(/\s+/g, '')).toContain(rev!.contentHash.slice(0, 16));
+    // One renderer serves the design report and the revision summary: who submitted it and the decision are on it.
+    expect(text).toContain('Revision 1 (approved)');
+    expect(text).toMatch(/Submitted by .+ on \d{4}-\d\d-\d\d \d\d:\d\d UTC/);
+    expect(text).toMatch(/Approved by .+ on \d{4}-\d\d-\d\d \d\d:\d\d UTC/);
   });
 
   it('keeps an approved revision in SQL too: the database refuses updates and deletes', async () => {

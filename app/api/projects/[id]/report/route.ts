@@ -2,7 +2,7 @@
 import { parseParams, withUser } from '@/lib/api/with-user';
 import { solveChain } from '@/lib/calc/chain';
 import { chainStagesFor, getProject } from '@/lib/projects/service';
-import { renderProjectReportPdf } from '@/lib/report/project-report';
+import { renderReportPdf, ReportError, reportErrorResponse } from '@/lib/report/pdf';
 import { idParamSchema } from '@/lib/validation/auth';
 
 export const runtime = 'nodejs';
@@ -11,7 +11,13 @@ export const GET = withUser('projects:read', async (_req, { params }) => {
   const { id } = parseParams(params, idParamSchema);
   const project = await getProject(id);
   const chain = solveChain(await chainStagesFor(project), project.supply, { inputRms: 0.1 });
-  const pdf = await renderProjectReportPdf(project, { chain });
+  let pdf: Buffer;
+  try {
+    pdf = await renderReportPdf(project, { chain });
+  } catch (err) {
+    if (err instanceof ReportError) return reportErrorResponse(err);
+    throw err;
+  }
   const slug = project.name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 60) || `project-${project.id}`;
   return new Response(new Uint8Array(pdf), {
     headers: {
