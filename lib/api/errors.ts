@@ -1,6 +1,6 @@
 import 'server-only';
 import { NextResponse } from 'next/server';
-import { ForeignKeyConstraintError, UniqueConstraintError, DatabaseError } from 'sequelize';
+import { ConnectionError, DatabaseError, ForeignKeyConstraintError, TimeoutError, UniqueConstraintError } from 'sequelize';
 import { ZodError } from 'zod';
 import { CalcError } from '@/lib/calc';
 
@@ -15,6 +15,7 @@ export const ERROR_STATUS = {
   unprocessable_entity: 422,
   too_many_requests: 429,
   internal_error: 500,
+  service_unavailable: 503,
 } as const;
 export type ErrorCode = keyof typeof ERROR_STATUS;
 
@@ -47,7 +48,31 @@ export function errorResponse(code: ErrorCode | string, message: string, status:
   return NextResponse.json<ErrorBody>({ error: { code, message, ...extra } }, { status });
 }
 
+// SQLSTATE classes and socket errors that mean "PostgreSQL cannot be reached right now", not "this request is wrong".
+const UNAVAILABLE_CODES = new Set(['57P01', '57P02', '57P03', '53300', '53400', 'ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'EHOSTUNREACH', 'ENOTFOUND', 'EAI_AGAIN']);
+const UNAVAILABLE_MESSAGE = /Connection terminated|connection timeout|timeout exceeded when trying to connect|Client has encountered a connection error|the database system is (starting up|shutting down|in recovery)|terminating connection/i;
+
+/** True when the error says the database is unreachable or going away (a retry later may well succeed). */
+export function isDatabaseUnavailable(err: unknown): boolean {
+  if (err instanceof ConnectionError || err instanceof TimeoutError) return true;
+  for (let e: unknown = err, depth = 0; e && typeof e === 'object' && depth < 4; depth++) {
+    const { code, message } = e as { code?: unknown; message?: unknown };
+    if (typeof code === 'string' && (code.startsWith('08') || UNAVAILABLE_CODES.has(code))) return true;
+    if (typeof message === 'string' && UNAVAILABLE_MESSAGE.test(message)) return true;
+    e = (e as { parent?: unknown; original?: unknown; cause?: unknown }).parent ?? (e as { original?: unknown }).original ?? (e as { cause?: unknown }).cause;
+  }
+  return false;
+}
+
+export const RETRY_AFTER_SECONDS = 5;
+
 export function toErrorResponse(err: unknown) {
+  if (isDatabaseUnavailable(err)) {
+    console.warn('[api] database unavailable:', (err as Error)?.message);
+    const res = errorResponse('service_unavailable', 'Anodyne is temporarily unavailable. Nothing you saved is lost; try again in a few seconds.', 503);
+    res.headers.set('Retry-After', String(RETRY_AFTER_SECONDS));
+    return res;
+  }
   if (err instanceof ApiError) {
     return errorResponse(err.code, err.message, ERROR_STATUS[err.code], { fieldErrors: err.fieldErrors, details: err.details });
   }

@@ -12,7 +12,9 @@ export function createSequelize(url: string) {
     dialect: 'postgres',
     dialectModule: pg,
     logging: false,
-    pool: { max: 10, min: 0, idle: 10_000 },
+    // An unreachable database is an error within seconds (the API answers 503), not a request parked for a minute.
+    pool: { max: 10, min: 0, idle: 10_000, acquire: 5_000, evict: 1_000 },
+    dialectOptions: { connectionTimeoutMillis: 3_000 },
   });
   initModels(sequelize);
   return sequelize;
