@@ -6,7 +6,7 @@
 #   4. a short hostile-input fuzz (scripts/fuzz.ts, 2,000 requests) against the same production server
 #   5. the server log scanned for unhandled errors; a clone into a private 0700 folder set up from scratch
 # Ends with one line "N passed, N failed" over all of them (scripts/summarize-tests.mjs); exit 1 unless 0 failed.
-# Env: E2E_PORT (3100), TEST_DB_NAME (anodyne_test), FUZZ_REQUESTS (2000), SKIP_CLONE_CHECK=1 (inside the clone check).
+# Env: E2E_PORT (3100), TEST_DB_NAME (anodyne_test), FUZZ_REQUESTS (2000), FUZZ_SEED, VITEST_FILES, SKIP_CLONE_CHECK=1.
 set -euo pipefail
 source "$(dirname "${BASH_SOURCE[0]}")/setup.sh" test
 export OUTBOX_INTERVAL_MS=1000
@@ -18,7 +18,9 @@ mkdir -p reports/checks
 rm -f reports/vitest.json reports/vitest-status.json reports/playwright.json reports/build-failed reports/server.log reports/checks/*.json
 set +e
 
-node node_modules/vitest/vitest.mjs run --reporter=default --reporter=json --reporter=./scripts/vitest-run-status.mjs --outputFile.json=reports/vitest.json
+# VITEST_FILES narrows the vitest run (for trying the harness; the floor in tests/floor.json then fails the line)
+# shellcheck disable=SC2086
+node node_modules/vitest/vitest.mjs run ${VITEST_FILES:-} --reporter=default --reporter=json --reporter=./scripts/vitest-run-status.mjs --outputFile.json=reports/vitest.json
 vitest_rc=$?
 
 pw_rc=1
