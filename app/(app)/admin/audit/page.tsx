@@ -13,7 +13,7 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
   const sp = await searchParams;
   const parsed = auditQuerySchema.safeParse({ projectId: sp.projectId || undefined, userId: sp.userId || undefined, action: sp.action || undefined });
   const filter = parsed.success ? parsed.data : auditQuerySchema.parse({});
-  const [events, options] = await Promise.all([listAudit(filter), auditFilterOptions()]);
+  const [events, options] = await Promise.all([listAudit(filter, 'all'), auditFilterOptions()]);
   return (
     <div className="space-y-4">
       <PageHeader title="Audit log" subtitle="Every change that matters, with who made it and when. Newest first." />
