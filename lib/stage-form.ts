@@ -2,7 +2,7 @@
 // (SI numbers, validated by stageBodySchema). No React here, so it is unit-tested on its own.
 import type { z } from 'zod';
 import { stageBodySchema, type StageBody, type Topology } from '@/lib/validation/stage';
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
 
 export const TOPOLOGIES: { value: Topology; label: string }[] = [
   { value: 'common-cathode', label: 'Common cathode (voltage amplifier)' },
@@ -276,10 +276,4 @@ export function fromStageInputs(
       : base.screen,
     load: load ? { enabled: true, resistance: t(load.resistance, base.load.resistance), couplingCapacitor: t(load.couplingCapacitor, base.load.couplingCapacitor) } : { ...base.load, enabled: false },
   };
-}
-
-/** CSV of drawing data (already computed by the engine): one header row, SI units named in the header. */
-export function toCsv(header: string[], rows: (number | string)[][]): string {
-  const cell = (c: number | string) => (typeof c === 'number' ? String(c) : /[",\n]/.test(c) ? `"${c.replace(/"/g, '""')}"` : c);
-  return [header.join(','), ...rows.map((r) => r.map(cell).join(','))].join('\n') + '\n';
 }

@@ -1,5 +1,5 @@
 import type { BenchComparison, PlateCurrentMethod } from '@/lib/calc/bench';
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
 
 export const fmt = (v: number | null | undefined, unit: string, digits = 3) => (typeof v === 'number' && Number.isFinite(v) ? formatEng(v, unit, digits) : '—');
 

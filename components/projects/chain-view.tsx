@@ -9,7 +9,7 @@ import type { ChainResult, ChainStageResult } from '@/lib/calc/chain';
 import type { ProjectDetail } from '@/lib/projects/service';
 import { fetchJson } from '@/lib/queries/fetch-json';
 import { LIMIT_WORDS } from '@/lib/report/labels';
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
 import { cn } from '@/lib/utils';
 import { chainQuerySchema } from '@/lib/validation/project';
 

@@ -14,7 +14,7 @@ import { Input, Textarea } from '@/components/ui/input';
 import type { ProjectDetail, StageDTO, WatcherOption } from '@/lib/projects/service';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import { TOPOLOGY_LABELS } from '@/lib/report/labels';
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
 import { cn } from '@/lib/utils';
 import { renameProjectSchema, type RenameProjectInput } from '@/lib/validation/project';
 import { SubmitForReviewButton } from '@/components/reviews/submit-for-review-button';

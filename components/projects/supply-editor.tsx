@@ -9,7 +9,7 @@ import { Field } from '@/components/ui/field';
 import { Input } from '@/components/ui/input';
 import type { ProjectDetail } from '@/lib/projects/service';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
 import { projectSupplySchema, type ProjectSupply, type ProjectSupplyInput } from '@/lib/validation/project';
 
 // Values are shown in engineering notation without the unit (the unit sits beside the field): 4.7 k, 22 µ.

@@ -1,4 +1,4 @@
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
 
 export function fmtValue(v: unknown, unit: string): string {
   if (v === null || v === undefined) return '—';

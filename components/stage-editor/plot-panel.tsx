@@ -10,8 +10,8 @@ import { TransferChart } from '@/components/charts/transfer-chart';
 import { WaveformChart } from '@/components/charts/waveform-chart';
 import { Button } from '@/components/ui/button';
 import type { StageAnalysis } from '@/lib/calc';
-import { toCsv } from '@/lib/stage-form';
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
+import { CURVE_FILE_NAMES, curvesCsv, type CurveKind } from '@/lib/report/curves-csv';
 import { Segmented, tabPanelProps } from './segmented';
 
 export type SecondaryView = 'transfer' | 'waveform' | 'spectrum' | 'response';
@@ -24,30 +24,10 @@ const VIEWS: { value: SecondaryView; label: string }[] = [
 
 type Csv = { name: string; text: string };
 
-export function plateCsv(a: StageAnalysis): Csv {
-  const rows: (string | number)[][] = [];
-  for (const c of a.plot.curves) for (const p of c.points) rows.push([c.bias ? 'bias curve' : 'plate curve', c.gridVoltage, p.va, p.ia]);
-  for (const p of a.plot.dcLoadLine) rows.push(['DC load line', '', p.va, p.ia]);
-  for (const p of a.plot.acLoadLine) rows.push(['AC load line', '', p.va, p.ia]);
-  for (const p of a.plot.paMax) rows.push(['Pa(max)', '', p.va, p.ia]);
-  rows.push(['operating point', a.operatingPoint.gridCathodeVoltage, a.plot.operatingPoint.va, a.plot.operatingPoint.ia]);
-  return { name: 'plate-curves', text: toCsv(['series', 'vg_V', 'va_V', 'ia_A'], rows) };
-}
-
-export function secondaryCsv(a: StageAnalysis, view: SecondaryView): Csv {
-  switch (view) {
-    case 'transfer':
-      return { name: 'transfer', text: toCsv(['vg_V', 'ia_A'], a.plot.transfer.map((p) => [p.vg, p.ia])) };
-    case 'waveform': {
-      const w = a.largeSignal.waveform;
-      return { name: 'waveform', text: toCsv(['t_s', 'input_V', 'output_V'], w.t.map((t, i) => [t, w.input[i] ?? '', w.output[i] ?? ''])) };
-    }
-    case 'spectrum':
-      return { name: 'harmonics', text: toCsv(['order', 'amplitude_V', 'level_dB_re_fundamental'], a.largeSignal.harmonics.map((h) => [h.order, h.amplitude, h.db])) };
-    case 'response':
-      return { name: 'response', text: toCsv(['frequency_Hz', 'magnitude_dB', 'phase_deg'], a.smallSignal.response.map((p) => [p.frequency, p.magnitudeDb, p.phaseDeg])) };
-  }
-}
+// The same writer as GET /api/stages/{id}/curves: same columns, same figures.
+const csvOf = (a: StageAnalysis, kind: CurveKind): Csv => ({ name: CURVE_FILE_NAMES[kind], text: curvesCsv(a, kind) });
+export const plateCsv = (a: StageAnalysis): Csv => csvOf(a, 'plate');
+export const secondaryCsv = (a: StageAnalysis, view: SecondaryView): Csv => csvOf(a, view);
 
 function download(csv: Csv, stem: string) {
   const url = URL.createObjectURL(new Blob([csv.text], { type: 'text/csv;charset=utf-8' }));

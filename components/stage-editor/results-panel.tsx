@@ -3,7 +3,7 @@
 // Operating point, small- and large-signal results and every rating check, as the engine returned them.
 import { StatusBadge } from '@/components/ui/badge';
 import type { RatingCheck, StageAnalysis } from '@/lib/calc';
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
 import { cn } from '@/lib/utils';
 
 const LIMITED_BY: Record<string, string> = {

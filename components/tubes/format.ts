@@ -1,4 +1,4 @@
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
 import { FAMILY_LABELS, type TubeFamily } from '@/lib/validation/tube';
 
 export function eng(value: number | null | undefined, unit: string, digits = 3): string {

@@ -11,7 +11,7 @@ import { Field } from '@/components/ui/field';
 import { Input, Select, Textarea } from '@/components/ui/input';
 import type { TubeDetail } from '@/lib/tubes/service';
 import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
 import { createTubeSchema, FAMILY_LABELS, RATING_KEYS, RATING_META, TUBE_FAMILIES } from '@/lib/validation/tube';
 
 // The form edits the fields shared by create and edit; typical points and models have their own screens.

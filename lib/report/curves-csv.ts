@@ -1,31 +1,36 @@
-// CSV of a plotted curve of a stored stage analysis (SI units, one header row, '.' decimal separator).
+// CSV of every plotted view of a stage analysis: written the same way by the stage editor's download buttons and
+// by GET /api/stages/{id}/curves, so the same plot has the same columns wherever it is downloaded from.
 import type { StageAnalysis } from '@/lib/calc';
+import { writeCsv } from '@/lib/format/csv';
 
-export type CurveKind = 'plate' | 'transfer' | 'response' | 'waveform';
+import type { CurveKind } from './curve-kinds';
 
-const num = (x: number) => (Number.isFinite(x) ? String(Number(x.toPrecision(8))) : '');
-const row = (cells: (string | number)[]) => cells.map((c) => (typeof c === 'number' ? num(c) : /[",\n]/.test(c) ? `"${c.replace(/"/g, '""')}"` : c)).join(',');
+export { CURVE_KINDS, type CurveKind } from './curve-kinds';
 
-export function curvesCsv(analysis: StageAnalysis, kind: CurveKind): string {
-  const lines: string[] = [];
-  if (kind === 'plate') {
-    const p = analysis.plot;
-    lines.push(row(['series', 'grid_voltage_V', 'plate_voltage_V', 'plate_current_A']));
-    for (const c of p.curves) for (const pt of c.points) lines.push(row([c.bias ? 'curve (bias)' : 'curve', c.gridVoltage, pt.va, pt.ia]));
-    for (const pt of p.dcLoadLine) lines.push(row(['dc load line', '', pt.va, pt.ia]));
-    for (const pt of p.acLoadLine) lines.push(row(['ac load line', '', pt.va, pt.ia]));
-    for (const pt of p.paMax) lines.push(row(['Pa(max)', '', pt.va, pt.ia]));
-    lines.push(row(['operating point', analysis.operatingPoint.gridCathodeVoltage, p.operatingPoint.va, p.operatingPoint.ia]));
-  } else if (kind === 'transfer') {
-    lines.push(row(['grid_voltage_V', 'plate_current_A']));
-    for (const pt of analysis.plot.transfer) lines.push(row([pt.vg, pt.ia]));
-  } else if (kind === 'response') {
-    lines.push(row(['frequency_Hz', 'magnitude_dB', 'phase_deg']));
-    for (const pt of analysis.smallSignal.response) lines.push(row([pt.frequency, pt.magnitudeDb, pt.phaseDeg]));
-  } else {
-    const w = analysis.largeSignal.waveform;
-    lines.push(row(['time_s', 'input_V', 'output_V']));
-    w.t.forEach((t, i) => lines.push(row([t, w.input[i] ?? NaN, w.output[i] ?? NaN])));
+/** File-name part for each kind (`{stage}-{name}.csv`). */
+export const CURVE_FILE_NAMES: Record<CurveKind, string> = { plate: 'plate-curves', transfer: 'transfer', waveform: 'waveform', spectrum: 'harmonics', response: 'response' };
+
+export function curvesCsv(a: StageAnalysis, kind: CurveKind): string {
+  switch (kind) {
+    case 'plate': {
+      const p = a.plot;
+      const rows: (string | number)[][] = [];
+      for (const c of p.curves) for (const pt of c.points) rows.push([c.bias ? 'bias curve' : 'plate curve', c.gridVoltage, pt.va, pt.ia]);
+      for (const pt of p.dcLoadLine) rows.push(['DC load line', '', pt.va, pt.ia]);
+      for (const pt of p.acLoadLine) rows.push(['AC load line', '', pt.va, pt.ia]);
+      for (const pt of p.paMax) rows.push(['Pa(max)', '', pt.va, pt.ia]);
+      rows.push(['operating point', a.operatingPoint.gridCathodeVoltage, p.operatingPoint.va, p.operatingPoint.ia]);
+      return writeCsv(['series', 'gridVoltage', 'plateVoltage', 'plateCurrent'], rows);
+    }
+    case 'transfer':
+      return writeCsv(['gridVoltage', 'plateCurrent'], a.plot.transfer.map((pt) => [pt.vg, pt.ia]));
+    case 'waveform': {
+      const w = a.largeSignal.waveform;
+      return writeCsv(['time', 'inputVoltage', 'outputVoltage'], w.t.map((t, i) => [t, w.input[i], w.output[i]]));
+    }
+    case 'spectrum':
+      return writeCsv(['harmonicOrder', 'amplitude', 'levelReFundamental'], a.largeSignal.harmonics.map((h) => [h.order, h.amplitude, h.db]));
+    case 'response':
+      return writeCsv(['frequency', 'magnitude', 'phase'], a.smallSignal.response.map((pt) => [pt.frequency, pt.magnitudeDb, pt.phaseDeg]));
   }
-  return `${lines.join('\n')}\n`;
 }

@@ -1,5 +1,5 @@
 // Words and units for stage inputs and topologies, shared by the project screens and the PDF report.
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
 
 export const TOPOLOGY_LABELS: Record<string, string> = {
   'common-cathode': 'Common cathode',

@@ -6,7 +6,7 @@ import type { ChainResult } from '@/lib/calc/chain';
 import type { StageAnalysis } from '@/lib/calc';
 import type { ProjectDetail } from '@/lib/projects/service';
 import type { StageDTO } from '@/lib/stages/service';
-import { formatEng } from '@/lib/units';
+import { formatEng } from '@/lib/format/number';
 import { inputRows, LIMIT_WORDS, TOPOLOGY_LABELS } from './labels';
 
 export type ReportOptions = {

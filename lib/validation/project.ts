@@ -3,6 +3,7 @@ import { text } from './text';
 import { idNumber, idText, intCounter } from './ids';
 import { quantity } from './quantity';
 import { stageBodySchema } from './stage';
+import { CURVE_KINDS } from '@/lib/report/curve-kinds';
 
 export const PROJECT_STATUSES = ['draft', 'in-review', 'approved', 'changes-requested'] as const;
 export type ProjectStatus = (typeof PROJECT_STATUSES)[number];
@@ -136,5 +137,4 @@ export const chainQuerySchema = z.object({
 });
 export type ChainQuery = z.output<typeof chainQuerySchema>;
 
-export const CURVE_KINDS = ['plate', 'transfer', 'response', 'waveform'] as const;
 export const curvesQuerySchema = z.object({ kind: z.enum(CURVE_KINDS, { message: `Choose one of ${CURVE_KINDS.join(', ')}.` }) });

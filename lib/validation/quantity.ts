@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { formatEng, parseEng } from '../units';
+import { formatEng, parseEng } from '../format/number';
 
 export type QuantityOptions = {
   min?: number;

@@ -258,8 +258,9 @@ describe('chain, curves and report', () => {
     expect(r.json.error.message).toMatch(/Driver \(B\+2\)/);
   });
 
-  it('gives CSV of the plotted curves', async () => {
-    for (const kind of ['plate', 'transfer', 'response', 'waveform']) {
+  it('gives CSV of the plotted curves, with the same columns and figures as the stage editor downloads', async () => {
+    const editor = await import('@/components/stage-editor/plot-panel');
+    for (const kind of ['plate', 'transfer', 'response', 'waveform', 'spectrum'] as const) {
       const r = await call(curvesRoute.GET, { as: 'technician', path: `/api/stages/${driver.id}/curves?kind=${kind}`, params: { id: String(driver.id) } });
       expect(r.status).toBe(200);
       expect(r.res.headers.get('content-type')).toMatch(/text\/csv/);
@@ -269,6 +270,9 @@ describe('chain, curves and report', () => {
       expect(lines.every((l) => l.split(',').length === cols)).toBe(true);
       if (kind === 'response') expect(lines[0]).toBe('frequency_Hz,magnitude_dB,phase_deg');
       if (kind === 'plate') expect(lines.some((l) => l.startsWith('operating point,'))).toBe(true);
+      if (kind === 'plate') expect(lines[0]).toBe('series,grid_voltage_V,plate_voltage_V,plate_current_A');
+      const fromEditor = kind === 'plate' ? editor.plateCsv(driver.analysis!) : editor.secondaryCsv(driver.analysis!, kind);
+      expect(fromEditor.text.trim().split('\n')).toEqual(lines);
     }
     const bad = await call(curvesRoute.GET, { as: 'technician', path: `/api/stages/${driver.id}/curves?kind=smith`, params: { id: String(driver.id) } });
     expect(bad.status).toBe(422);

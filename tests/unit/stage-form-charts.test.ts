@@ -52,7 +52,7 @@ describe('chart drawing helpers', () => {
     expect(range.vaMax).toBeGreaterThanOrEqual(300);
     expect(range.iaMax).toBeGreaterThanOrEqual(300 / 101_500);
     const csv = plateCsv(a).text.split('\n');
-    expect(csv[0]).toBe('series,vg_V,va_V,ia_A');
+    expect(csv[0]).toBe('series,grid_voltage_V,plate_voltage_V,plate_current_A');
     for (const name of ['bias curve', 'DC load line', 'AC load line', 'Pa(max)', 'operating point']) {
       expect(csv.some((line) => line.startsWith(`${name},`)), name).toBe(true);
     }

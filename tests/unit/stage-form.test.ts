@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { FIELD_UNITS, TOPOLOGIES, fromStageInputs, newStageDefaults, parseStageForm, toCsv, toFieldText } from '@/lib/stage-form';
-import { parseEng } from '@/lib/units';
+import { FIELD_UNITS, TOPOLOGIES, fromStageInputs, newStageDefaults, parseStageForm, toFieldText } from '@/lib/stage-form';
+import { parseEng } from '@/lib/format/number';
 import { stageMemberSchemas } from '@/lib/validation/stage';
 
 // Walks optional/default/nullable wrappers and discriminated-union options to the quantity at a dotted path.
@@ -90,9 +90,5 @@ describe('stage form helpers', () => {
       }
     }
     expect(checked).toBeGreaterThan(40);
-  });
-
-  it('writes CSV with quoted text cells', () => {
-    expect(toCsv(['series', 'va_V'], [['Vg = "-1"', 10]])).toBe('series,va_V\n"Vg = ""-1""",10\n');
   });
 });

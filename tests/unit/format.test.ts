@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatEng, parseEng } from '@/lib/units';
+import { formatEng, parseEng } from '@/lib/format/number';
 import { quantity } from '@/lib/validation/quantity';
 
 describe('parseEng', () => {
@@ -90,5 +90,28 @@ describe('quantity()', () => {
   });
   it('records the unit', () => {
     expect(ohms.description).toBe('Ω');
+  });
+});
+
+describe('CSV files', () => {
+  it('names columns by one rule: snake_case quantity, then the SI unit', async () => {
+    const { csvColumn, CSV_QUANTITIES } = await import('@/lib/format/csv');
+    expect(csvColumn('plateVoltage')).toBe('plate_voltage_V');
+    expect(csvColumn('plateCurrent')).toBe('plate_current_A');
+    expect(csvColumn('series')).toBe('series');
+    const names = (Object.keys(CSV_QUANTITIES) as (keyof typeof CSV_QUANTITIES)[]).map(csvColumn);
+    expect(new Set(names).size).toBe(names.length);
+    for (const n of names) expect(n).toMatch(/^[a-z]+(_[a-z]+)*(_(V|A|s|Hz|dB|deg))?$/);
+  });
+
+  it('writes 6 significant figures, quotes text that needs it and leaves missing values empty', async () => {
+    const { writeCsv } = await import('@/lib/format/csv');
+    const text = writeCsv(['series', 'plateVoltage', 'plateCurrent'], [
+      ['Vg = "-1", bias', 0.1 + 0.2, 1.23456789e-3],
+      ['DC load line', Number.NaN, null],
+      ['big', 123456789, -4.5e-12],
+    ]);
+    // RFC 4180 quoting (papaparse): a field holding a comma or a quote is quoted, inner quotes doubled.
+    expect(text).toBe('series,plate_voltage_V,plate_current_A\n"Vg = ""-1"", bias",0.3,0.00123457\nDC load line,,\nbig,123457000,-4.5e-12\n');
   });
 });

@@ -85,3 +85,16 @@ export function formatEng(value: number, unit = '', digits = 3): string {
   const text = trimZeros(mantissa.toPrecision(digits).includes('e') ? String(mantissa) : mantissa.toPrecision(digits));
   return `${text} ${prefix}${unit}`.trim();
 }
+
+/** A value for display, or an en dash when there is none (null, undefined, NaN, ±Infinity never reach the screen). */
+export function formatMaybe(value: number | null | undefined, unit = '', digits = 3): string {
+  return typeof value === 'number' && Number.isFinite(value) ? formatEng(value, unit, digits) : '–';
+}
+
+/** Significant figures for numbers written to files (CSV): enough for any plot, no binary noise (0.30000000000000004). */
+export const FILE_DIGITS = 6;
+
+/** A number for a file: FILE_DIGITS significant figures in plain decimal or exponent form, '' when not finite. */
+export function fileNumber(value: number): string {
+  return Number.isFinite(value) ? String(Number(value.toPrecision(FILE_DIGITS))) : '';
+}
