@@ -68,9 +68,13 @@ function UploadForm({ tube, onUploaded }: { tube: TubeDetail; onUploaded: (id: n
   const [fileError, setFileError] = useState<string | null>(null);
   const [problem, setProblem] = useState<{ message: string; errors: CsvIssue[] } | null>(null);
   const [done, setDone] = useState<string | null>(null);
+  // the server's warning about implausible current sizes; "Store as they are" sends the same file again, confirmed
+  const [magnitude, setMagnitude] = useState<string | null>(null);
+  const confirmed = useRef(false);
   const onSubmit = form.handleSubmit(async (values) => {
     setProblem(null);
     setDone(null);
+    setMagnitude(null);
     const file = fileRef.current?.files?.[0];
     if (!file) {
       setFileError('Choose a CSV file.');
@@ -87,8 +91,18 @@ function UploadForm({ tube, onUploaded }: { tube: TubeDetail; onUploaded: (id: n
     body.set('currentUnit', values.currentUnit);
     if (values.name) body.set('name', values.name);
     if (values.notes) body.set('notes', values.notes);
+    if (confirmed.current) body.set('confirmMagnitude', 'yes');
+    confirmed.current = false;
     const res = await fetch(`/api/tubes/${tube.id}/curve-sets`, { method: 'POST', body });
-    const json = (await res.json().catch(() => null)) as { id?: number; pointCount?: number; error?: { message: string; details?: { errors?: CsvIssue[] }; fieldErrors?: Record<string, string[]> } } | null;
+    const json = (await res.json().catch(() => null)) as {
+      id?: number;
+      pointCount?: number;
+      error?: { message: string; details?: { errors?: CsvIssue[]; needsConfirmation?: string }; fieldErrors?: Record<string, string[]> };
+    } | null;
+    if (json?.error?.details?.needsConfirmation === 'confirmMagnitude') {
+      setMagnitude(json.error.message);
+      return;
+    }
     if (!res.ok || !json?.id) {
       setProblem({ message: json?.error?.message ?? `Upload failed (${res.status}).`, errors: json?.error?.details?.errors ?? [] });
       return;
@@ -133,6 +147,19 @@ function UploadForm({ tube, onUploaded }: { tube: TubeDetail; onUploaded: (id: n
               ))}
             </ul>
           ) : null}
+        </div>
+      ) : null}
+      {magnitude ? (
+        <div role="alert" className="space-y-2 rounded-md border border-near/50 bg-near/10 p-2 text-sm" data-testid="magnitude-warning">
+          <p>{magnitude}</p>
+          <div className="flex flex-wrap gap-2">
+            <Button type="submit" size="sm" variant="secondary" onClick={() => (confirmed.current = true)}>
+              Store as they are
+            </Button>
+            <Button type="button" size="sm" variant="ghost" onClick={() => setMagnitude(null)}>
+              Change the unit first
+            </Button>
+          </div>
         </div>
       ) : null}
       {done ? <p role="status" className="text-sm text-ok">{done}</p> : null}

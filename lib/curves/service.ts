@@ -13,6 +13,7 @@ import { curveUploadFieldsSchema, type FitModel } from '@/lib/validation/curve-s
 import { CurveFit, CurvePoint, CurveSet, TubeType } from '@/models';
 import { recordAudit } from '@/lib/db/audit';
 import { sequelize } from '@/lib/db';
+import { currentMagnitudeWarning } from './plausibility';
 import { assertMayEdit, createModelRow, lockTube, toCurveSetRow, toFitRow, toModelRow, type CurveSetRow, type FitRow, type ModelRow } from '@/lib/tubes/service';
 
 export type CsvIssue = { line: number | null; column: string | null; message: string };
@@ -47,7 +48,7 @@ export async function readUpload(req: Request, maxBytes = MAX_UPLOAD_BYTES): Pro
  * in one transaction with its audit row. A bad file stores nothing.
  */
 export async function uploadCurveSet(actor: CurrentUser, tubeTypeId: number, file: File, rawFields: Record<string, string>): Promise<CurveSetRow> {
-  const fields = curveUploadFieldsSchema.parse({ currentUnit: rawFields.currentUnit, name: rawFields.name, notes: rawFields.notes });
+  const fields = curveUploadFieldsSchema.parse({ currentUnit: rawFields.currentUnit, name: rawFields.name, notes: rawFields.notes, confirmMagnitude: rawFields.confirmMagnitude });
   if (file.size > MAX_UPLOAD_BYTES) {
     const check = validateUpload({ size: file.size, type: file.type, name: file.name });
     rejectUpload('payload_too_large', check.ok ? [{ line: null, column: null, message: 'The file is larger than 5 MB.' }] : check.errors);
@@ -60,6 +61,15 @@ export async function uploadCurveSet(actor: CurrentUser, tubeTypeId: number, fil
 
   const id = await sequelize.transaction(async (transaction) => {
     const tube = await lockTube(tubeTypeId, transaction);
+    if (fields.confirmMagnitude !== 'yes') {
+      const warning = currentMagnitudeWarning(
+        parsed.points.map((p) => p.plateCurrent),
+        fields.currentUnit,
+        tube.designation,
+        { cathodeCurrent: tube.ratings.cathodeCurrent?.value, plateDissipation: tube.ratings.plateDissipation?.value },
+      );
+      if (warning) throw new ApiError('unprocessable_entity', warning, { fieldErrors: { currentUnit: [warning] }, details: { needsConfirmation: 'confirmMagnitude' } });
+    }
     const count = await CurveSet.count({ where: { tubeTypeId }, transaction });
     const set = await CurveSet.create(
       {

@@ -13,6 +13,8 @@ export const curveUploadFieldsSchema = z.object({
   currentUnit: z.enum(['mA', 'A']),
   name: optionalText(120),
   notes: optionalText(2000),
+  /** 'yes' stores currents whose size looks implausible for the type (after the warning was shown) */
+  confirmMagnitude: z.enum(['yes']).optional(),
 });
 export type CurveUploadFields = z.infer<typeof curveUploadFieldsSchema>;
 
