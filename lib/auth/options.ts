@@ -1,4 +1,5 @@
 import 'server-only';
+import { randomBytes } from 'node:crypto';
 import bcrypt from 'bcryptjs';
 import type { NextAuthOptions } from 'next-auth';
 import CredentialsProvider from 'next-auth/providers/credentials';
@@ -6,14 +7,12 @@ import { env } from '@/lib/env';
 import { recordAudit } from '@/lib/db/audit';
 import { signInSchema } from '@/lib/validation/auth';
 import { User, type Role } from '@/models';
+import { clientAddress } from './client-address';
 import { assertNotLocked, clearFailures, recordFailure, throttleKeys } from './throttle';
 
-function clientIp(headers: Record<string, string | string[] | undefined> | undefined): string | null {
-  const fwd = headers?.['x-forwarded-for'];
-  const first = (Array.isArray(fwd) ? fwd[0] : fwd)?.split(',')[0]?.trim();
-  const real = headers?.['x-real-ip'];
-  return first || (Array.isArray(real) ? real[0] : real) || null;
-}
+// bcrypt runs for unknown accounts too (against this hash of a random password, same cost as real hashes), so
+// the answer takes as long whether or not the account exists.
+const DUMMY_HASH = bcrypt.hashSync(randomBytes(16).toString('hex'), 10);
 
 export const authOptions: NextAuthOptions = {
   secret: env.NEXTAUTH_SECRET,
@@ -27,10 +26,10 @@ export const authOptions: NextAuthOptions = {
         const parsed = signInSchema.safeParse(credentials ?? {});
         if (!parsed.success) throw new Error('Enter your e-mail address and password.');
         const email = parsed.data.email.toLowerCase();
-        const keys = throttleKeys(email, clientIp(req?.headers));
+        const keys = throttleKeys(email, clientAddress(req?.headers as Record<string, string | undefined> | undefined));
         await assertNotLocked(keys);
         const user = await User.findOne({ where: { email } });
-        const ok = user?.passwordHash ? await bcrypt.compare(parsed.data.password, user.passwordHash) : false;
+        const ok = (await bcrypt.compare(parsed.data.password, user?.passwordHash ?? DUMMY_HASH)) && !!user?.passwordHash;
         if (!user || !ok) {
           await recordFailure(keys);
           throw new Error('That e-mail address and password do not match an account.');

@@ -1,6 +1,7 @@
 import { afterAll, beforeEach, describe, expect, it } from 'vitest';
 import { GET as me } from '@/app/api/me/route';
 import { PATCH as patchUser } from '@/app/api/admin/users/[id]/route';
+import { ADDRESS_MAX_FAILURES } from '@/lib/auth/throttle';
 import { sequelize } from '@/lib/db';
 import { SignInAttempt, User } from '@/models';
 import { call, DEMO, DEMO_PASSWORD } from '../support/api';
@@ -30,21 +31,20 @@ describe('sign-in', () => {
     expect(r.error).toMatch(/do not match/);
   });
 
-  it('slows and then locks an account after repeated failures, even with the right password', async () => {
+  it('slows an account after repeated failures from many addresses, but never locks its owner out', async () => {
     const started = Date.now();
     for (let i = 0; i < 5; i++) {
       const r = await signInWithPassword(DEMO.technician, `wrong-${i}`, `198.51.100.${i}`);
       expect(r.ok).toBe(false);
     }
-    // failures 4 and 5 were delayed (400 ms and 800 ms)
-    expect(Date.now() - started).toBeGreaterThanOrEqual(1000);
-    const locked = await signInWithPassword(DEMO.technician, DEMO_PASSWORD, '198.51.100.99');
-    expect(locked.ok).toBe(false);
-    expect(locked.error).toMatch(/Too many failed sign-ins.*locked for \d+ minute/);
+    // failures 4 and 5 were delayed (250 ms and 500 ms)
+    expect(Date.now() - started).toBeGreaterThanOrEqual(750);
+    const owner = await signInWithPassword(DEMO.technician, DEMO_PASSWORD, '198.51.100.99');
+    expect(owner.ok).toBe(true);
   });
 
   it('locks a client address that tries many accounts', async () => {
-    for (let i = 0; i < 5; i++) await signInWithPassword(`nobody${i}@anodyne.test`, 'x', '192.0.2.50');
+    for (let i = 0; i < ADDRESS_MAX_FAILURES; i++) await signInWithPassword(`nobody${i}@anodyne.test`, 'x', '192.0.2.50');
     const r = await signInWithPassword(DEMO.admin, DEMO_PASSWORD, '192.0.2.50');
     expect(r.error).toMatch(/Too many failed sign-ins/);
     const other = await signInWithPassword(DEMO.admin, DEMO_PASSWORD, '192.0.2.51');

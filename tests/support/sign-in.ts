@@ -4,8 +4,10 @@ import { authOptions } from '@/lib/auth/options';
 
 export type SignInResult = { ok: boolean; error: string | null; sessionCookie: string | null };
 
-export async function signInWithPassword(email: string, password: string, ip = '203.0.113.7'): Promise<SignInResult> {
-  const headers = { host: 'localhost:3100', 'x-forwarded-for': ip };
+// `ip` plays the TCP peer address (the server stamps it as x-anodyne-peer); `extraHeaders` can add what a client or
+// a proxy in front would send (X-Forwarded-For).
+export async function signInWithPassword(email: string, password: string, ip = '203.0.113.7', extraHeaders: Record<string, string> = {}): Promise<SignInResult> {
+  const headers = { host: 'localhost:3100', 'x-anodyne-peer': ip, ...extraHeaders };
   const csrf = await AuthHandler({ req: { method: 'GET', action: 'csrf', headers, cookies: {}, query: {} }, options: authOptions });
   const cookies: Record<string, string> = Object.fromEntries((csrf.cookies ?? []).map((c) => [c.name, c.value]));
   const csrfToken = (csrf.body as { csrfToken: string }).csrfToken;
