@@ -2,6 +2,7 @@
 import { readFileSync } from 'node:fs';
 import { analyzeStage, CalcError } from '../lib/calc';
 import { stageInputSchema } from '../lib/validation/stage';
+import { runChainCli } from './calc-chain';
 
 process.stdout.on('error', (err: NodeJS.ErrnoException) => {
   if (err.code === 'EPIPE') process.exit(0);
@@ -14,6 +15,7 @@ function fail(message: string, code: number): never {
 }
 
 const arg = process.argv[2];
+if (arg === '--chain') runChainCli(process.argv.slice(3));
 if (!arg) fail('usage: npm run -s calc -- FILE.json   (use - for stdin)', 64);
 
 let text: string;

@@ -7,7 +7,7 @@ import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { METHOD_WORDS } from '@/lib/calc/bench';
 import type { BenchCheckDTO, BenchPhoto } from '@/lib/bench/service';
 import { cn, formatDateTime } from '@/lib/utils';
-import { fmt, fmtDeviation, fmtTolerance } from './bench-format';
+import { formatMaybe, formatDeviation, formatTolerance } from '@/lib/format/number';
 import { uploadPhoto } from './bench-api';
 
 const VERDICT_WORDS = {
@@ -52,17 +52,17 @@ export function BenchCheckCard({ check, highlight = false, bare = false, canUplo
                   {c.label}
                   {c.derived ? <span className="ml-1 text-xs text-muted">(derived)</span> : null}
                 </td>
-                <td className="num py-1.5 pr-2 text-right">{fmt(c.measured, c.unit)}</td>
-                <td className="num py-1.5 pr-2 text-right text-muted">{fmt(c.design, c.unit)}</td>
-                <td className={cn('num py-1.5 pr-2 text-right', c.deviation !== null && Math.abs(c.deviation) > c.tolerance ? (Math.abs(c.deviation) > 2 * c.tolerance ? 'text-over' : 'text-near') : '')}>{fmtDeviation(c.deviation)}</td>
+                <td className="num py-1.5 pr-2 text-right">{formatMaybe(c.measured, c.unit)}</td>
+                <td className="num py-1.5 pr-2 text-right text-muted">{formatMaybe(c.design, c.unit)}</td>
+                <td className={cn('num py-1.5 pr-2 text-right', c.deviation !== null && Math.abs(c.deviation) > c.tolerance ? (Math.abs(c.deviation) > 2 * c.tolerance ? 'text-over' : 'text-near') : '')}>{formatDeviation(c.deviation)}</td>
                 <td className="num py-1.5 pr-2 text-right text-xs text-muted" title={c.toleranceSource === 'project' ? 'set for this project' : 'common practice'}>
-                  {fmtTolerance(c)}
+                  {formatTolerance(c.tolerance)}
                   {c.toleranceSource === 'project' ? ' (project)' : ''}
                 </td>
                 <td className="num py-1.5 pr-2 text-right text-xs">
                   {c.limit !== null ? (
                     <span className="inline-flex items-center gap-1.5">
-                      {fmt(c.limit, c.unit)} <StatusBadge status={c.ratingStatus} />
+                      {formatMaybe(c.limit, c.unit)} <StatusBadge status={c.ratingStatus} />
                     </span>
                   ) : c.ratingStatus !== 'not-checked' ? (
                     <StatusBadge status={c.ratingStatus} />

@@ -16,7 +16,8 @@ import { formatDateTime } from '@/lib/utils';
 import { benchCheckSchema, type BenchCheckInput, type BenchCheckValues } from '@/lib/validation/bench';
 import { BenchCheckCard } from './bench-check-card';
 import { uploadPhoto } from './bench-api';
-import { fmt, fmtTolerance, ROUTE_WORDS } from './bench-format';
+import { formatMaybe, formatTolerance } from '@/lib/format/number';
+import { ROUTE_WORDS } from './labels';
 
 export type PickerProject = { id: number; name: string; stages: { id: number; name: string; position: number; tubeDesignation: string; lastVerdict: 'pass' | 'check' | 'fail' | null }[] };
 
@@ -122,8 +123,8 @@ function StageBench({ stageId, initial, canRecord }: { stageId: number; initial:
                   <StatusBadge status={c.verdict} />
                   <span className="text-muted">{formatDateTime(c.createdAt)}</span>
                   <span>{c.technician?.displayName ?? 'unknown'}</span>
-                  <span className="num text-xs">Ia {fmt(c.comparisons.find((x) => x.key === 'plateCurrent')?.measured, 'A')}</span>
-                  <span className="num text-xs">Pa {fmt(c.comparisons.find((x) => x.key === 'plateDissipation')?.measured, 'W')}</span>
+                  <span className="num text-xs">Ia {formatMaybe(c.comparisons.find((x) => x.key === 'plateCurrent')?.measured, 'A')}</span>
+                  <span className="num text-xs">Pa {formatMaybe(c.comparisons.find((x) => x.key === 'plateDissipation')?.measured, 'W')}</span>
                   {c.tubeSerial ? <span className="num text-xs text-muted">tube {c.tubeSerial}</span> : null}
                   {c.photos.length ? <span className="text-xs text-muted">{c.photos.length} photo{c.photos.length === 1 ? '' : 's'}</span> : null}
                 </summary>
@@ -142,14 +143,14 @@ function StageBench({ stageId, initial, canRecord }: { stageId: number; initial:
 function DesignCard({ ctx }: { ctx: BenchContext }) {
   const e = ctx.expected;
   const rows: [string, string, string][] = [
-    ['Supply (B+)', fmt(e.supplyVoltage, 'V'), fmtTolerance({ tolerance: ctx.tolerances.supplyVoltage.value })],
-    ['Plate to ground', fmt(e.plateVoltage, 'V'), fmtTolerance({ tolerance: ctx.tolerances.plateVoltage.value })],
-    ['Cathode to ground', fmt(e.cathodeVoltage, 'V'), fmtTolerance({ tolerance: ctx.tolerances.cathodeVoltage.value })],
-    ...(ctx.pentode ? [['Screen to ground', fmt(e.screenVoltage, 'V'), fmtTolerance({ tolerance: ctx.tolerances.screenVoltage.value })] as [string, string, string]] : []),
-    ['Heater (nominal)', fmt(e.heaterVoltage, 'V'), fmtTolerance({ tolerance: ctx.tolerances.heaterVoltage.value })],
-    ['Plate current', fmt(e.plateCurrent, 'A'), fmtTolerance({ tolerance: ctx.tolerances.plateCurrent.value })],
-    ['Plate to cathode', fmt(e.plateCathodeVoltage, 'V'), fmtTolerance({ tolerance: ctx.tolerances.plateCathodeVoltage.value })],
-    ['Plate dissipation', fmt(e.plateDissipation, 'W'), ctx.limits.plateDissipation ? `rating ${fmt(ctx.limits.plateDissipation, 'W')}` : fmtTolerance({ tolerance: ctx.tolerances.plateDissipation.value })],
+    ['Supply (B+)', formatMaybe(e.supplyVoltage, 'V'), formatTolerance(ctx.tolerances.supplyVoltage.value)],
+    ['Plate to ground', formatMaybe(e.plateVoltage, 'V'), formatTolerance(ctx.tolerances.plateVoltage.value)],
+    ['Cathode to ground', formatMaybe(e.cathodeVoltage, 'V'), formatTolerance(ctx.tolerances.cathodeVoltage.value)],
+    ...(ctx.pentode ? [['Screen to ground', formatMaybe(e.screenVoltage, 'V'), formatTolerance(ctx.tolerances.screenVoltage.value)] as [string, string, string]] : []),
+    ['Heater (nominal)', formatMaybe(e.heaterVoltage, 'V'), formatTolerance(ctx.tolerances.heaterVoltage.value)],
+    ['Plate current', formatMaybe(e.plateCurrent, 'A'), formatTolerance(ctx.tolerances.plateCurrent.value)],
+    ['Plate to cathode', formatMaybe(e.plateCathodeVoltage, 'V'), formatTolerance(ctx.tolerances.plateCathodeVoltage.value)],
+    ['Plate dissipation', formatMaybe(e.plateDissipation, 'W'), ctx.limits.plateDissipation ? `rating ${formatMaybe(ctx.limits.plateDissipation, 'W')}` : formatTolerance(ctx.tolerances.plateDissipation.value)],
   ];
   const projectTol = Object.values(ctx.tolerances).some((t) => t.source === 'project');
   return (
@@ -228,7 +229,7 @@ function ReadingsForm({ ctx, onRecorded }: { ctx: BenchContext; onRecorded: (c: 
   });
 
   const volt = (name: 'supplyVoltage' | 'plateVoltage' | 'cathodeVoltage' | 'screenVoltage' | 'heaterVoltage', label: string, expected: number | null, hint?: string) => (
-    <Field label={label} htmlFor={`bench-${name}`} unit="V" error={errors[name]?.message} hint={expected !== null ? `design ${fmt(expected, 'V')}${hint ? ` · ${hint}` : ''}` : hint}>
+    <Field label={label} htmlFor={`bench-${name}`} unit="V" error={errors[name]?.message} hint={expected !== null ? `design ${formatMaybe(expected, 'V')}${hint ? ` · ${hint}` : ''}` : hint}>
       <Input id={`bench-${name}`} inputMode="decimal" autoComplete="off" className="num" aria-invalid={!!errors[name]} {...form.register(name)} />
     </Field>
   );
@@ -250,7 +251,7 @@ function ReadingsForm({ ctx, onRecorded }: { ctx: BenchContext; onRecorded: (c: 
               htmlFor="bench-measuredCurrent"
               unit="A"
               error={errors.measuredCurrent?.message}
-              hint={`${e.plateCurrent !== null ? `design ${fmt(e.plateCurrent, 'A')} · ` : ''}${ctx.plateCurrentRoute ? 'optional, e.g. 1.1m' : 'e.g. 42m'}`}
+              hint={`${e.plateCurrent !== null ? `design ${formatMaybe(e.plateCurrent, 'A')} · ` : ''}${ctx.plateCurrentRoute ? 'optional, e.g. 1.1m' : 'e.g. 42m'}`}
             >
               <Input id="bench-measuredCurrent" inputMode="decimal" autoComplete="off" className="num" aria-invalid={!!errors.measuredCurrent} {...form.register('measuredCurrent')} />
             </Field>

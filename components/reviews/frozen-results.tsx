@@ -2,7 +2,7 @@ import { StatusBadge } from '@/components/ui/badge';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { stageInputRows, stageResults } from '@/lib/review/diff';
 import type { RevisionSnapshot } from '@/lib/review/types';
-import { fmtValue } from './format';
+import { formatValue } from '@/lib/format/number';
 
 // The engine's results exactly as frozen in the revision: what the reviewer signs off.
 export function FrozenResults({ snapshot }: { snapshot: RevisionSnapshot }) {
@@ -27,7 +27,7 @@ export function FrozenResults({ snapshot }: { snapshot: RevisionSnapshot }) {
                   {stageInputRows(s).map((r) => (
                     <tr key={r.path}>
                       <td className="py-1 pr-2 text-muted">{r.label}</td>
-                      <td className="num py-1 text-right">{fmtValue(r.value, r.unit)}</td>
+                      <td className="num py-1 text-right">{formatValue(r.value, r.unit)}</td>
                     </tr>
                   ))}
                 </tbody>
@@ -40,7 +40,7 @@ export function FrozenResults({ snapshot }: { snapshot: RevisionSnapshot }) {
                   .map((r) => (
                     <tr key={r.path}>
                       <td className="py-1 pr-2 text-muted">{r.label}</td>
-                      <td className="num py-1 text-right">{fmtValue(r.value, r.unit)}</td>
+                      <td className="num py-1 text-right">{formatValue(r.value, r.unit)}</td>
                     </tr>
                   ))}
                 {(s.analysis?.ratings ?? []).map((r) => (
@@ -48,8 +48,8 @@ export function FrozenResults({ snapshot }: { snapshot: RevisionSnapshot }) {
                     <td className="py-1 pr-2 text-muted">{r.label}</td>
                     <td className="num py-1 text-right">
                       <span className="inline-flex items-center gap-2">
-                        {fmtValue(r.value, r.unit)}
-                        {r.limit ? <span className="text-xs text-muted">of {fmtValue(r.limit, r.unit)}</span> : null}
+                        {formatValue(r.value, r.unit)}
+                        {r.limit ? <span className="text-xs text-muted">of {formatValue(r.limit, r.unit)}</span> : null}
                         <StatusBadge status={r.status} />
                       </span>
                     </td>

@@ -1,7 +1,7 @@
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import type { RevisionDiff, StageDiff, ValueChange } from '@/lib/review/diff';
 import { cn } from '@/lib/utils';
-import { fmtValue } from './format';
+import { formatValue } from '@/lib/format/number';
 import type { MagnitudeChange } from '@/lib/review/diff';
 
 /** Signed values stay in their columns; this column says which way the magnitude moved, in words. */
@@ -23,8 +23,8 @@ function Rows({ changes, showSame }: { changes: ValueChange[]; showSame: boolean
       {rows.map((c) => (
         <tr key={c.path} data-path={c.path} className={c.change === 'same' ? 'text-muted' : undefined}>
           <td className="py-1.5 pr-3">{c.label}</td>
-          <td className={cn('num py-1.5 pr-3 text-right', c.change !== 'same' && 'bg-over/5')}>{fmtValue(c.before, c.unit)}</td>
-          <td className={cn('num py-1.5 pr-3 text-right', c.change !== 'same' && 'bg-ok/5 font-medium')}>{fmtValue(c.after, c.unit)}</td>
+          <td className={cn('num py-1.5 pr-3 text-right', c.change !== 'same' && 'bg-over/5')}>{formatValue(c.before, c.unit)}</td>
+          <td className={cn('num py-1.5 pr-3 text-right', c.change !== 'same' && 'bg-ok/5 font-medium')}>{formatValue(c.after, c.unit)}</td>
           <td className="num py-1.5 text-right text-xs text-muted">{c.change === 'changed' ? magnitudeWords(c.magnitude) : c.change === 'same' ? '' : c.change}</td>
         </tr>
       ))}

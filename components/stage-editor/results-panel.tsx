@@ -3,7 +3,7 @@
 // Operating point, small- and large-signal results and every rating check, as the engine returned them.
 import { StatusBadge } from '@/components/ui/badge';
 import type { RatingCheck, StageAnalysis } from '@/lib/calc';
-import { formatEng } from '@/lib/format/number';
+import { formatEng, formatMaybe } from '@/lib/format/number';
 import { cn } from '@/lib/utils';
 
 const LIMITED_BY: Record<string, string> = {
@@ -33,7 +33,6 @@ function Section({ title, children }: { title: string; children: React.ReactNode
   );
 }
 
-const eng = (v: number | null | undefined, unit: string, digits = 3) => (typeof v === 'number' ? formatEng(v, unit, digits) : '–');
 const pct = (v: number) => `${v < 10 ? v.toFixed(2) : v.toFixed(1)} %`;
 
 export function ResultsPanel({ analysis, stale }: { analysis: StageAnalysis; stale: boolean }) {
@@ -44,34 +43,34 @@ export function ResultsPanel({ analysis, stale }: { analysis: StageAnalysis; sta
   return (
     <div className={cn('transition-opacity', stale && 'opacity-60')} data-testid="results-panel" data-stale={stale ? 'true' : 'false'}>
       <Section title={pushPull ? 'Operating point (each tube, idle)' : 'Operating point'}>
-        <Row label="Plate to cathode, Vak" value={eng(op.plateCathodeVoltage, 'V')} testId="op-vak" />
-        <Row label="Plate current, Ia" value={eng(op.plateCurrent, 'A')} testId="op-ia" />
-        <Row label="Grid to cathode, Vgk" value={eng(op.gridCathodeVoltage, 'V')} testId="op-vgk" />
-        <Row label="Plate to ground" value={eng(op.plateVoltage, 'V')} />
-        <Row label="Cathode voltage" value={eng(op.cathodeVoltage, 'V')} />
-        {op.screenVoltage !== null ? <Row label="Screen voltage" value={eng(op.screenVoltage, 'V')} /> : null}
-        {op.screenCurrent !== null ? <Row label="Screen current" value={eng(op.screenCurrent, 'A')} /> : null}
-        <Row label="Plate dissipation" value={eng(op.plateDissipation, 'W')} />
+        <Row label="Plate to cathode, Vak" value={formatMaybe(op.plateCathodeVoltage, 'V')} testId="op-vak" />
+        <Row label="Plate current, Ia" value={formatMaybe(op.plateCurrent, 'A')} testId="op-ia" />
+        <Row label="Grid to cathode, Vgk" value={formatMaybe(op.gridCathodeVoltage, 'V')} testId="op-vgk" />
+        <Row label="Plate to ground" value={formatMaybe(op.plateVoltage, 'V')} />
+        <Row label="Cathode voltage" value={formatMaybe(op.cathodeVoltage, 'V')} />
+        {op.screenVoltage !== null ? <Row label="Screen voltage" value={formatMaybe(op.screenVoltage, 'V')} /> : null}
+        {op.screenCurrent !== null ? <Row label="Screen current" value={formatMaybe(op.screenCurrent, 'A')} /> : null}
+        <Row label="Plate dissipation" value={formatMaybe(op.plateDissipation, 'W')} />
       </Section>
       <Section title="Small signal">
         <Row label="Transconductance, gm" value={`${(ss.gm * 1e3).toPrecision(3)} mA/V`} />
-        <Row label="Plate resistance, ra" value={eng(ss.ra, 'Ω')} />
+        <Row label="Plate resistance, ra" value={formatMaybe(ss.ra, 'Ω')} />
         <Row label="Amplification factor, µ" value={ss.mu.toPrecision(3)} />
         <Row label="Voltage gain" value={`${ss.gain.toPrecision(3)} × (${ss.gainDb.toFixed(1)} dB)`} testId="gain" />
-        <Row label="Output impedance" value={eng(ss.outputImpedance, 'Ω')} />
-        <Row label="Low −3 dB point" value={eng(ss.lowCutoff, 'Hz')} />
-        <Row label="High −3 dB point" value={eng(ss.highCutoff, 'Hz')} />
+        <Row label="Output impedance" value={formatMaybe(ss.outputImpedance, 'Ω')} />
+        <Row label="Low −3 dB point" value={formatMaybe(ss.lowCutoff, 'Hz')} />
+        <Row label="High −3 dB point" value={formatMaybe(ss.highCutoff, 'Hz')} />
       </Section>
       <Section title={`Large signal at ${formatEng(ls.drive, 'V')} peak drive`}>
-        <Row label="Output amplitude" value={`${eng(ls.outputAmplitude, 'V')} peak`} />
-        <Row label="Headroom (max drive)" value={`${eng(ls.headroom.maxDrive, 'V')} peak`} title={LIMITED_BY[ls.headroom.limitedBy]} />
+        <Row label="Output amplitude" value={`${formatMaybe(ls.outputAmplitude, 'V')} peak`} />
+        <Row label="Headroom (max drive)" value={`${formatMaybe(ls.headroom.maxDrive, 'V')} peak`} title={LIMITED_BY[ls.headroom.limitedBy]} />
         <Row label="Limited by" value={<span className="font-sans text-xs">{LIMITED_BY[ls.headroom.limitedBy] ?? ls.headroom.limitedBy}</span>} />
-        <Row label="Output swing at the limit" value={`${eng(ls.headroom.outputSwing, 'V')} peak`} />
+        <Row label="Output swing at the limit" value={`${formatMaybe(ls.headroom.outputSwing, 'V')} peak`} />
         <Row label="THD (FFT)" value={pct(ls.thdPercent)} testId="thd" />
         <Row label="THD, 3-point estimate" value={pct(ls.thd3PointPercent)} />
         <Row label="THD, 5-point estimate" value={pct(ls.thd5PointPercent)} />
-        <Row label="Average current shift" value={eng(ls.dcShift, 'A')} />
-        {ls.outputPower !== null ? <Row label="Output power" value={eng(ls.outputPower, 'W')} testId="output-power" /> : null}
+        <Row label="Average current shift" value={formatMaybe(ls.dcShift, 'A')} />
+        {ls.outputPower !== null ? <Row label="Output power" value={formatMaybe(ls.outputPower, 'W')} testId="output-power" /> : null}
       </Section>
       {analysis.warnings.length ? (
         <section className="border-t border-rule px-4 py-3">

@@ -7,7 +7,8 @@ import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import type { TubeDetail } from '@/lib/tubes/service';
 import { formatDateTime } from '@/lib/utils';
 import { MAX_ATTACHMENT_BYTES } from '@/lib/validation/tube';
-import { eng, tubeQueryKey } from './format';
+import { formatMaybe } from '@/lib/format/number';
+import { tubeQueryKey } from './labels';
 
 export function AttachmentsPanel({ tube, canWrite }: { tube: TubeDetail; canWrite: boolean }) {
   const qc = useQueryClient();
@@ -43,7 +44,7 @@ export function AttachmentsPanel({ tube, canWrite }: { tube: TubeDetail; canWrit
               <a href={a.url} className="text-dcline hover:underline" download>
                 {a.fileName}
               </a>
-              <span className="num text-xs text-muted">{eng(a.byteSize, 'B')}</span>
+              <span className="num text-xs text-muted">{formatMaybe(a.byteSize, 'B')}</span>
               <span className="text-xs text-muted">
                 {a.uploadedBy ? `${a.uploadedBy}, ` : ''}
                 {formatDateTime(a.createdAt)}

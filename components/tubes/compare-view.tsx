@@ -11,7 +11,7 @@ import { Select } from '@/components/ui/input';
 import type { CompareSeries, TubeOption } from '@/lib/tubes/service';
 import { fetchJson } from '@/lib/queries/fetch-json';
 import { MODEL_KIND_LABELS } from '@/lib/validation/tube';
-import { eng } from './format';
+import { formatMaybe } from '@/lib/format/number';
 
 type Answer = { vaMax: number; transferPlateVoltage: number; series: CompareSeries[] };
 
@@ -74,7 +74,7 @@ export function CompareView({ options, initialIds }: { options: TubeOption[]; in
         </div>
       </div>
       <Card>
-        <CardHeader title={mode === 'plate' ? 'Plate curves' : `Transfer curves at Va = ${eng(data?.transferPlateVoltage ?? 250, 'V')}`} />
+        <CardHeader title={mode === 'plate' ? 'Plate curves' : `Transfer curves at Va = ${formatMaybe(data?.transferPlateVoltage ?? 250, 'V')}`} />
         <CardBody>
           {ids.length < 2 ? (
             <p className="text-sm text-muted">Choose at least two types (only types with a model are listed).</p>
@@ -89,8 +89,8 @@ export function CompareView({ options, initialIds }: { options: TubeOption[]; in
                 <li key={s.tubeTypeId}>
                   <span className="text-ink">{s.designation}</span>: {s.modelName} ({MODEL_KIND_LABELS[s.kind]})
                   {mode === 'plate' ? `, grid steps ${s.plateCurves.map((c) => gridLabel(c.gridVoltage)).join(', ')}` : ''}
-                  {s.screenVoltage !== null ? `, screen at ${eng(s.screenVoltage, 'V')}` : ''}
-                  {s.plateDissipation ? `; Pa(max) ${eng(s.plateDissipation, 'W')}` : ''}
+                  {s.screenVoltage !== null ? `, screen at ${formatMaybe(s.screenVoltage, 'V')}` : ''}
+                  {s.plateDissipation ? `; Pa(max) ${formatMaybe(s.plateDissipation, 'W')}` : ''}
                 </li>
               ))}
             </ul>

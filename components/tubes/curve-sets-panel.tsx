@@ -17,7 +17,8 @@ import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
 import { formatDateTime } from '@/lib/utils';
 import { curveUploadFieldsSchema, type FitModel } from '@/lib/validation/curve-set';
 import { MODEL_KIND_LABELS } from '@/lib/validation/tube';
-import { eng, parameterText, PARAMETER_LABELS, tubeQueryKey } from './format';
+import { formatMaybe } from '@/lib/format/number';
+import { parameterText, PARAMETER_LABELS, tubeQueryKey } from './labels';
 
 type CsvIssue = { line: number | null; column: string | null; message: string };
 type Detail = { curveSet: CurveSetRow; measured: MeasuredPlotPoint[]; curves: FittedPlotCurve[]; screenVoltage: number | null; vaMax: number; fit: FitRow | null };
@@ -283,7 +284,7 @@ function FitWorkbench({ tube, curveSetId, canWrite, canEditPublished }: { tube: 
         stale={fit.isPending}
       />
       <p className="text-xs text-muted">
-        Crosses: measured points{d.screenVoltage !== null ? <> at Vg2 = <span className="num">{eng(d.screenVoltage, 'V')}</span></> : null}. {curves.length ? 'Lines: the fitted model at the measured grid voltages.' : 'Run a fit to draw the model over them.'}
+        Crosses: measured points{d.screenVoltage !== null ? <> at Vg2 = <span className="num">{formatMaybe(d.screenVoltage, 'V')}</span></> : null}. {curves.length ? 'Lines: the fitted model at the measured grid voltages.' : 'Run a fit to draw the model over them.'}
       </p>
       {shownFit ? <FitSummary fit={shownFit} extra={answer?.fit} /> : null}
       {message ? <p role="status" className={message.tone === 'ok' ? 'text-sm text-ok' : 'text-sm text-over'}>{message.text}</p> : null}

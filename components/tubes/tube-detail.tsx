@@ -15,7 +15,8 @@ import { fetchJson } from '@/lib/queries/fetch-json';
 import { MODEL_KIND_LABELS, RATING_KEYS, RATING_META } from '@/lib/validation/tube';
 import { AttachmentsPanel } from './attachments-panel';
 import { CurveSetsPanel } from './curve-sets-panel';
-import { eng, familyLabel, heaterText, parameterText, PARAMETER_LABELS, tubeQueryKey } from './format';
+import { formatMaybe } from '@/lib/format/number';
+import { familyLabel, heaterText, parameterText, PARAMETER_LABELS, tubeQueryKey } from './labels';
 import { ModelForm } from './model-form';
 
 export function TubeDetailView({ initialTube, initialPlot, canWrite, canEditPublished }: { initialTube: TubeDetail; initialPlot: TubePlot | null; canWrite: boolean; canEditPublished: boolean }) {
@@ -142,13 +143,13 @@ function CurvesCard({ tube, initialPlot }: { tube: TubeDetail; initialPlot: Tube
                 {plot.model.name} ({MODEL_KIND_LABELS[plot.model.kind]}), grid steps as labelled
                 {plot.screenVoltage !== null ? (
                   <>
-                    , screen at <span className="num">{eng(plot.screenVoltage, 'V')}</span>
+                    , screen at <span className="num">{formatMaybe(plot.screenVoltage, 'V')}</span>
                   </>
                 ) : null}
                 .{' '}
                 {plot.plateDissipation ? (
                   <>
-                    Dashed red: Pa(max) <span className="num">{eng(plot.plateDissipation, 'W')}</span> ({tube.ratings.plateDissipation?.source}).
+                    Dashed red: Pa(max) <span className="num">{formatMaybe(plot.plateDissipation, 'W')}</span> ({tube.ratings.plateDissipation?.source}).
                   </>
                 ) : (
                   'No plate dissipation rating recorded, so no Pa(max) curve.'
@@ -163,7 +164,7 @@ function CurvesCard({ tube, initialPlot }: { tube: TubeDetail; initialPlot: Tube
       {plot ? (
         <div className="grid gap-5 2xl:grid-cols-2">
           <Card>
-            <CardHeader title={`Transfer curve at Va = ${eng(plot.transferPlateVoltage, 'V')}`} />
+            <CardHeader title={`Transfer curve at Va = ${formatMaybe(plot.transferPlateVoltage, 'V')}`} />
             <CardBody>
               <TransferChart points={plot.transfer} plateVoltage={plot.transferPlateVoltage} height={260} stale={plotQ.isFetching} />
             </CardBody>
@@ -201,13 +202,13 @@ function TypicalCard({ plot }: { plot: TubePlot }) {
                     <tr key={t.label} className="align-top">
                       <td className="py-1.5 pr-2">
                         <div className="num text-xs">
-                          {eng(t.plateVoltage, 'V')}, {eng(t.gridVoltage, 'V')}
-                          {t.screenVoltage !== null ? `, Vg2 ${eng(t.screenVoltage, 'V')}` : ''}
+                          {formatMaybe(t.plateVoltage, 'V')}, {formatMaybe(t.gridVoltage, 'V')}
+                          {t.screenVoltage !== null ? `, Vg2 ${formatMaybe(t.screenVoltage, 'V')}` : ''}
                         </div>
                         <div className="text-xs text-muted">{t.source}</div>
                       </td>
-                      <td className="num whitespace-nowrap py-1.5 pr-2 text-right">{eng(t.datasheetIa, 'A')}</td>
-                      <td className="num whitespace-nowrap py-1.5 pr-2 text-right">{eng(t.modelIa, 'A')}</td>
+                      <td className="num whitespace-nowrap py-1.5 pr-2 text-right">{formatMaybe(t.datasheetIa, 'A')}</td>
+                      <td className="num whitespace-nowrap py-1.5 pr-2 text-right">{formatMaybe(t.modelIa, 'A')}</td>
                       <td className="whitespace-nowrap py-1.5 pr-2 text-right">
                         {off === null ? '–' : (
                           <Badge tone={off <= 10 ? 'ok' : off <= 30 ? 'near' : 'over'}>
@@ -216,7 +217,7 @@ function TypicalCard({ plot }: { plot: TubePlot }) {
                         )}
                       </td>
                       <td className="num whitespace-nowrap py-1.5 text-right text-xs">
-                        {eng(t.gm, 'S')} · {eng(t.ra, 'Ω')}
+                        {formatMaybe(t.gm, 'S')} · {formatMaybe(t.ra, 'Ω')}
                       </td>
                     </tr>
                   );
@@ -245,7 +246,7 @@ function RatingsCard({ tube }: { tube: TubeDetail }) {
             {rows.map((k) => (
               <div key={k} className="grid grid-cols-[1fr_auto] gap-x-3 py-1.5">
                 <dt>{RATING_META[k].label}</dt>
-                <dd className="num text-right font-medium">{eng(tube.ratings[k]!.value, RATING_META[k].unit)}</dd>
+                <dd className="num text-right font-medium">{formatMaybe(tube.ratings[k]!.value, RATING_META[k].unit)}</dd>
                 <dd className="col-span-2 text-xs text-muted">{tube.ratings[k]!.source}</dd>
               </div>
             ))}
@@ -260,7 +261,7 @@ function RatingsCard({ tube }: { tube: TubeDetail }) {
           <div className="text-sm">
             <h3 className="text-xs font-medium uppercase tracking-wide text-muted">Interelectrode capacitances</h3>
             <p className="num">
-              Cgk {eng(caps.cgk, 'F')} · Cga {eng(caps.cga, 'F')} · Cak {eng(caps.cak, 'F')}
+              Cgk {formatMaybe(caps.cgk, 'F')} · Cga {formatMaybe(caps.cga, 'F')} · Cak {formatMaybe(caps.cak, 'F')}
             </p>
             {caps.source ? <p className="text-xs text-muted">{caps.source}</p> : null}
           </div>
@@ -273,12 +274,12 @@ function RatingsCard({ tube }: { tube: TubeDetail }) {
                 <li key={p.label}>
                   <span>{p.label}</span>
                   <span className="num block text-xs">
-                    Va {eng(p.plateVoltage, 'V')}, Vg {eng(p.gridVoltage, 'V')}
-                    {p.screenVoltage ? `, Vg2 ${eng(p.screenVoltage, 'V')}` : ''} → Ia {eng(p.plateCurrent, 'A')}
-                    {p.screenCurrent ? `, Ig2 ${eng(p.screenCurrent, 'A')}` : ''}
+                    Va {formatMaybe(p.plateVoltage, 'V')}, Vg {formatMaybe(p.gridVoltage, 'V')}
+                    {p.screenVoltage ? `, Vg2 ${formatMaybe(p.screenVoltage, 'V')}` : ''} → Ia {formatMaybe(p.plateCurrent, 'A')}
+                    {p.screenCurrent ? `, Ig2 ${formatMaybe(p.screenCurrent, 'A')}` : ''}
                     {p.mu ? `, µ ${p.mu}` : ''}
-                    {p.ra ? `, ra ${eng(p.ra, 'Ω')}` : ''}
-                    {p.gm ? `, gm ${eng(p.gm, 'S')}` : ''}
+                    {p.ra ? `, ra ${formatMaybe(p.ra, 'Ω')}` : ''}
+                    {p.gm ? `, gm ${formatMaybe(p.gm, 'S')}` : ''}
                   </span>
                   <span className="block text-xs text-muted">{p.source}</span>
                 </li>

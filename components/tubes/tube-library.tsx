@@ -9,7 +9,8 @@ import { Button } from '@/components/ui/button';
 import { DataTable } from '@/components/ui/data-table';
 import type { TubeSummary } from '@/lib/tubes/service';
 import { MODEL_KIND_LABELS } from '@/lib/validation/tube';
-import { eng, familyLabel, heaterText } from './format';
+import { formatMaybe } from '@/lib/format/number';
+import { familyLabel, heaterText } from './labels';
 
 const rating = (t: TubeSummary, key: keyof TubeSummary['ratings']) => t.ratings[key]?.value ?? null;
 
@@ -27,7 +28,7 @@ export function TubeLibrary({ tubes }: { tubes: TubeSummary[] }) {
     header,
     accessorFn: (t) => rating(t, id) ?? -1,
     sortUndefined: 'last',
-    cell: ({ row }) => <span className="num">{eng(rating(row.original, id), unit)}</span>,
+    cell: ({ row }) => <span className="num">{formatMaybe(rating(row.original, id), unit)}</span>,
   });
 
   const columns: ColumnDef<TubeSummary, unknown>[] = [

@@ -86,10 +86,36 @@ export function formatEng(value: number, unit = '', digits = 3): string {
   return `${text} ${prefix}${unit}`.trim();
 }
 
-/** A value for display, or an en dash when there is none (null, undefined, NaN, ±Infinity never reach the screen). */
+/**
+ * A value for the screen: engineering notation with a true minus sign, or an en dash when there is none
+ * (null, undefined, NaN and ±Infinity never reach the screen).
+ */
 export function formatMaybe(value: number | null | undefined, unit = '', digits = 3): string {
-  return typeof value === 'number' && Number.isFinite(value) ? formatEng(value, unit, digits) : '–';
+  return typeof value === 'number' && Number.isFinite(value) ? formatEng(value, unit, digits).replace(/^-/, '−') : '–';
 }
+
+/** Any stored result value (numbers, flags, words): percentages to 2 decimals, plain ratios to 4 figures. */
+export function formatValue(v: unknown, unit: string): string {
+  if (v === null || v === undefined) return '–';
+  if (typeof v === 'number') {
+    if (!Number.isFinite(v)) return '–';
+    if (unit === '%') return `${v.toFixed(2)} %`;
+    if (unit === '') return Math.abs(v) >= 1000 || (Math.abs(v) < 0.01 && v !== 0) ? formatMaybe(v, '') : String(Number(v.toPrecision(4))).replace(/^-/, '−');
+    return formatMaybe(v, unit, 4);
+  }
+  if (typeof v === 'boolean') return v ? 'yes' : 'no';
+  return String(v);
+}
+
+/** A relative deviation (0.052 → '+5.2 %'), one decimal below 10 %. */
+export function formatDeviation(d: number | null): string {
+  if (d === null || !Number.isFinite(d)) return '–';
+  const p = d * 100;
+  return `${p > 0 ? '+' : p < 0 ? '−' : ''}${Math.abs(p).toFixed(Math.abs(p) < 10 ? 1 : 0)} %`;
+}
+
+/** A tolerance band (0.1 → '±10 %'). */
+export const formatTolerance = (tolerance: number) => `±${Math.round(tolerance * 1000) / 10} %`;
 
 /** Significant figures for numbers written to files (CSV): enough for any plot, no binary noise (0.30000000000000004). */
 export const FILE_DIGITS = 6;

@@ -115,3 +115,19 @@ describe('CSV files', () => {
     expect(text).toBe('series,plate_voltage_V,plate_current_A\n"Vg = ""-1"", bias",0.3,0.00123457\nDC load line,,\nbig,123457000,-4.5e-12\n');
   });
 });
+
+describe('screen values', () => {
+  it('never shows NaN or Infinity, and writes negatives with a true minus sign', async () => {
+    const { formatMaybe, formatValue, formatDeviation, formatTolerance } = await import('@/lib/format/number');
+    expect(formatMaybe(-1.6129, 'V')).toBe('−1.61 V');
+    expect(formatMaybe(1.07e-3, 'A')).toBe('1.07 mA');
+    for (const bad of [Number.NaN, Infinity, -Infinity, null, undefined]) expect(formatMaybe(bad, 'V')).toBe('–');
+    expect(formatValue(12.3456, '%')).toBe('12.35 %');
+    expect(formatValue(Number.NaN, 'V')).toBe('–');
+    expect(formatValue(true, '')).toBe('yes');
+    expect(formatValue(-33.456, '')).toBe('−33.46');
+    expect(formatDeviation(0.052)).toBe('+5.2 %');
+    expect(formatDeviation(-0.25)).toBe('−25 %');
+    expect(formatTolerance(0.1)).toBe('±10 %');
+  });
+});

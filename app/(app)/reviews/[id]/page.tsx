@@ -3,7 +3,7 @@ import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { pageId } from '@/lib/validation/ids';
 import { DecisionForm } from '@/components/reviews/decision-form';
-import { STATE_WORDS } from '@/components/reviews/format';
+import { STATE_WORDS } from '@/components/reviews/labels';
 import { FrozenResults } from '@/components/reviews/frozen-results';
 import { RevisionDiffView } from '@/components/reviews/revision-diff';
 import { Caution } from '@/components/shell/caution';
