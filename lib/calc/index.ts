@@ -5,6 +5,8 @@ import { analyzeCommonCathode } from './stages/common-cathode';
 import { analyzePentodeAmplifier } from './stages/pentode-amplifier';
 import { analyzePushPullOutput } from './stages/push-pull-output';
 import { analyzeSingleEndedOutput } from './stages/single-ended-output';
+import { analyzeLongTailedPair } from './stages/long-tailed-pair';
+import { analyzeSplitLoad } from './stages/split-load';
 import type { StageAnalysis } from './types';
 import type { AnalyzeOptions } from './stages/single-tube';
 
@@ -66,6 +68,12 @@ export function analyzeStage(input: StageInput, options?: AnalyzeOptions): Stage
       break;
     case 'push-pull-output':
       result = analyzePushPullOutput(input, options);
+      break;
+    case 'long-tailed-pair':
+      result = analyzeLongTailedPair(input, options);
+      break;
+    case 'split-load':
+      result = analyzeSplitLoad(input, options);
       break;
     default:
       throw new CalcError('invalid-input', `Unknown topology '${(input as { topology: string }).topology}'.`);

@@ -66,7 +66,21 @@ export type NetlistOptions = {
 /** Magnetising inductance of the modelled output transformer (large enough to be invisible at 1 kHz). */
 const PRIMARY_INDUCTANCE = 20;
 
-type Built = { body: string[]; out: string; grid: string; plate: string; cathode: string; screen: string | null; tau: number; power: string | null; sourceScale: number };
+type Built = {
+  body: string[];
+  out: string;
+  grid: string;
+  plate: string;
+  cathode: string;
+  screen: string | null;
+  tau: number;
+  power: string | null;
+  sourceScale: number;
+  /** phase splitters: the second output and the second section's plate and meter */
+  out2?: string;
+  plate2?: string;
+  meter2?: string;
+};
 
 function biasParts(bias: { kind: 'cathode'; cathodeResistor: number; cathodeBypass: number | null } | { kind: 'fixed'; fixedBias: number }, cath: string) {
   if (bias.kind === 'fixed') {
@@ -87,7 +101,10 @@ function screenLines(screen: { kind: 'fixed'; supply?: number } | { kind: 'resis
   return { lines, tau: screen.bypass ? screen.bypass * screen.resistor : 0 };
 }
 
-function inputLines(input: StageInput, grid: string, ret: string, acCoupled: boolean) {
+/** Input coupling capacitor for the splitters' AC-coupled grids: a real value, so the transient settles to the drive's steady state. */
+const SPLITTER_INPUT_CAPACITOR = 100e-9;
+
+function inputLines(input: StageInput, grid: string, ret: string, acCoupled: boolean, couplingCapacitor = 1) {
   const rs = input.sourceResistance;
   const rg = input.gridResistor;
   const lines: string[] = [];
@@ -95,7 +112,7 @@ function inputLines(input: StageInput, grid: string, ret: string, acCoupled: boo
   const amp = rs > 0 && !acCoupled ? (input.drive.amplitude * (rs + rg)) / rg : input.drive.amplitude;
   lines.push(`VIN ${src} ${acCoupled ? '0' : ret} DC 0 AC 1 SIN(0 ${num(amp)} ${num(input.drive.frequency)})`);
   if (acCoupled) {
-    lines.push(rs > 0 ? `RS src sc ${num(rs)}` : 'RS src sc 1e-3', `CIN sc ${grid} 1`);
+    lines.push(rs > 0 ? `RS src sc ${num(rs)}` : 'RS src sc 1e-3', `CIN sc ${grid} ${num(couplingCapacitor)}`);
   } else if (rs > 0) {
     lines.push(`RS src ${grid} ${num(rs)}`);
   }
@@ -197,8 +214,76 @@ function build(input: StageInput): Built {
       );
       return { body, out: 'vpp', grid: 'grid1', plate: 'plate1', cathode: b.cathode, screen: pentode ? 'g2' : null, tau: Math.max(b.tau, s.tau), power: `vpp ${num(raa)}`, sourceScale: 1 };
     }
+    case 'long-tailed-pair': {
+      const tail = input.tail;
+      body.push(
+        `RA1 bplus plate1 ${num(input.plateResistors.inverting)}`,
+        `RA2 bplus plate2 ${num(input.plateResistors.nonInverting)}`,
+        'VMP1 plate1 pt1 DC 0',
+        'VMP2 plate2 pt2 DC 0',
+        tubeCall('X1', 'pt1', 'grid1', 'cath'),
+        tubeCall('X2', 'pt2', 'grid2', 'cath'),
+      );
+      let tap = 'cath';
+      if (tail.kind === 'resistor') {
+        if (tail.biasResistor > 0) {
+          body.push(`RB cath tap ${num(tail.biasResistor)}`);
+          tap = 'tap';
+        }
+        if (tail.tailSupply !== 0) body.push(`RT ${tap} vtail ${num(tail.tailResistor)}`, `VTAIL vtail 0 DC ${num(tail.tailSupply)}`);
+        else body.push(`RT ${tap} 0 ${num(tail.tailResistor)}`);
+      } else {
+        body.push(`ITAIL cath 0 DC ${num(tail.current)}`);
+      }
+      let ret: string;
+      if (input.grids.kind === 'bias-tap') {
+        ret = tap;
+        body.push(...inputLines(input, 'grid1', tap, true, SPLITTER_INPUT_CAPACITOR));
+      } else {
+        ret = 'gref';
+        body.push(`VGREF gref 0 DC ${num(input.grids.gridVoltage)}`, ...inputLines(input, 'grid1', 'gref', false));
+      }
+      body.push(`RG2 grid2 ${ret} ${num(input.gridResistor)}`, `CG2 grid2 0 ${num(input.secondGridBypass)}`);
+      let out = 'plate1';
+      let out2 = 'plate2';
+      let tau = Math.max(input.secondGridBypass, input.grids.kind === 'bias-tap' ? SPLITTER_INPUT_CAPACITOR : 0) * input.gridResistor;
+      if (input.load) {
+        const l = input.load;
+        body.push(`CC1 plate1 out1 ${num(l.couplingCapacitor)}`, `RL1 out1 0 ${num(l.resistance)}`, `CC2 plate2 out2 ${num(l.couplingCapacitor)}`, `RL2 out2 0 ${num(l.resistance)}`);
+        out = 'out1';
+        out2 = 'out2';
+        tau = Math.max(tau, l.couplingCapacitor * (l.resistance + input.plateResistors.inverting));
+      }
+      return { body, out, out2, grid: 'grid1', plate: 'plate1', plate2: 'plate2', meter2: 'VMP2', cathode: 'cath', screen: null, tau, power: null, sourceScale: 1 };
+    }
+    case 'split-load': {
+      body.push(`RA bplus plate ${num(input.plateResistor)}`, 'VMP plate pt DC 0', tubeCall('XT', 'pt', 'grid', 'cath'));
+      let tap = 'cath';
+      if (input.biasResistor > 0) {
+        body.push(`RB cath tap ${num(input.biasResistor)}`);
+        tap = 'tap';
+      }
+      body.push(`RK ${tap} 0 ${num(input.cathodeResistor)}`);
+      if (input.bias.kind === 'bootstrapped') body.push(...inputLines(input, 'grid', tap, true, SPLITTER_INPUT_CAPACITOR));
+      else body.push(`VGB gret 0 DC ${num(input.bias.gridVoltage)}`, ...inputLines(input, 'grid', 'gret', false));
+      let out = 'plate';
+      let out2 = 'cath';
+      // the bootstrapped grid resistor looks about ten times larger to its coupling capacitor
+      let tau = input.bias.kind === 'bootstrapped' ? SPLITTER_INPUT_CAPACITOR * input.gridResistor * 3 : 0;
+      if (input.load) {
+        const l = input.load;
+        body.push(`CC1 plate outp ${num(l.couplingCapacitor)}`, `RL1 outp 0 ${num(l.resistance)}`, `CC2 cath outk ${num(l.couplingCapacitor)}`, `RL2 outk 0 ${num(l.resistance)}`);
+        out = 'outp';
+        out2 = 'outk';
+        tau = l.couplingCapacitor * (l.resistance + input.plateResistor);
+      }
+      return { body, out, out2, grid: 'grid', plate: 'plate', cathode: 'cath', screen: null, tau, power: null, sourceScale: 1 };
+    }
   }
 }
+
+/** Frequencies at which the netlist reports the response from the source EMF (`res_resp<i>_mag`, `_ph`). */
+export const RESPONSE_FREQUENCIES = [20, 1000, 20000];
 
 /**
  * An ngspice batch netlist for the stage. The control block prints machine-readable lines
@@ -215,7 +300,7 @@ export function stageNetlist(input: StageInput, options: NetlistOptions = { anal
   const settle = Math.min(2, Math.max(10 * period, 6 * b.tau));
   const tstop = settle + period;
   const pentode = input.tube.model === 'koren-pentode';
-  const meter = input.topology === 'push-pull-output' ? 'VMP1' : 'VMP';
+  const meter = input.topology === 'push-pull-output' || input.topology === 'long-tailed-pair' ? 'VMP1' : 'VMP';
   const lines = [
     `* Anodyne stage netlist: ${input.topology}`,
     SPICE_PRELUDE,
@@ -236,6 +321,7 @@ export function stageNetlist(input: StageInput, options: NetlistOptions = { anal
       `let res_op_iplate = i(${meter})`,
       'print res_op_vplate res_op_vcath res_op_vgrid res_op_iplate',
     );
+    if (b.plate2 && b.meter2) lines.push(`let res_op_vplate2 = v(${b.plate2})`, `let res_op_iplate2 = i(${b.meter2})`, 'print res_op_vplate2 res_op_iplate2');
     if (pentode && b.screen) {
       const sm = input.topology === 'push-pull-output' ? 'VMSX1' : 'VMSXT';
       lines.push(`let res_op_vscreen = v(${b.screen})`, `let res_op_iscreen = i(${sm})`, 'print res_op_vscreen res_op_iscreen');
@@ -249,10 +335,30 @@ export function stageNetlist(input: StageInput, options: NetlistOptions = { anal
       'let res_ac_phase = ph(r_g)',
       'print res_ac_gain res_ac_phase',
     );
+    if (b.out2) {
+      lines.push(`let r_g2 = v(${b.out2})/v(${b.grid})`, 'let res_ac_gain2 = mag(r_g2)', 'let res_ac_phase2 = ph(r_g2)', 'print res_ac_gain2 res_ac_phase2');
+    }
+    // response from the source EMF (VIN is 1 V AC) to the output(s)
+    RESPONSE_FREQUENCIES.forEach((fr, i) => {
+      lines.push(`ac lin 1 ${num(fr)} ${num(fr)}`, `let res_resp${i}_mag = mag(v(${b.out}))`, `let res_resp${i}_ph = ph(v(${b.out}))`, `print res_resp${i}_mag res_resp${i}_ph`);
+      if (b.out2) lines.push(`let res_resp${i}_mag2 = mag(v(${b.out2}))`, `let res_resp${i}_ph2 = ph(v(${b.out2}))`, `print res_resp${i}_mag2 res_resp${i}_ph2`);
+    });
   }
   if (options.analyses.includes('tran') && input.drive.amplitude > 0) {
     const dt = period / steps;
-    lines.push(`tran ${num(dt)} ${num(tstop)} ${num(settle - period)} ${num(dt)}`, `echo "RESULT fourier=output"`, `fourier ${num(f)} v(${b.out})`);
+    // steady state check: the output's peak-to-peak and mean over the last period and over a period 20 % earlier
+    const early = 0.8 * tstop;
+    lines.push(
+      `tran ${num(dt)} ${num(tstop)} ${num(Math.min(settle - period, early - period))} ${num(dt)}`,
+      `meas tran res_win1_pp PP v(${b.out}) from=${num(early - period)} to=${num(early)}`,
+      `meas tran res_win2_pp PP v(${b.out}) from=${num(tstop - period)} to=${num(tstop)}`,
+      `meas tran res_win1_avg AVG v(${b.out}) from=${num(early - period)} to=${num(early)}`,
+      `meas tran res_win2_avg AVG v(${b.out}) from=${num(tstop - period)} to=${num(tstop)}`,
+      'print res_win1_pp res_win2_pp res_win1_avg res_win2_avg',
+      `echo "RESULT fourier=output"`,
+      `fourier ${num(f)} v(${b.out})`,
+    );
+    if (b.out2) lines.push(`echo "RESULT fourier=output2"`, `fourier ${num(f)} v(${b.out2})`);
     if (b.power) {
       const [node, load] = b.power.split(' ');
       lines.push(`echo "RESULT fourier=power load=${load}"`, `fourier ${num(f)} v(${node})`);

@@ -49,7 +49,14 @@ export type LargeSignal = {
   /** change of the average plate current under drive (A; both tubes for push-pull) */
   dcShift: number;
   outputPower: number | null;
-  headroom: { maxDrive: number; limitedBy: HeadroomLimit; outputSwing: number };
+  headroom: {
+    maxDrive: number;
+    limitedBy: HeadroomLimit;
+    outputSwing: number;
+    /** phase splitters: the output (or tube) that reaches the limit first, and why, in plain words */
+    side?: string;
+    explanation?: string;
+  };
   waveform: { t: number[]; input: number[]; output: number[] };
 };
 
@@ -89,6 +96,30 @@ export type StagePlot = {
   screenVoltage: number | null;
 };
 
+/** Names a chain link can take a signal from. */
+export type OutputName = 'plate' | 'cathode' | 'inverting' | 'non-inverting';
+
+/** One output of a stage (phase splitters have two; single-output stages report their one). */
+export type StageOutput = {
+  /** large-signal fundamental at the drive, V peak (0 without drive) */
+  amplitude: number;
+  /** phase relative to the grid drive at the drive frequency (linearised network), degrees */
+  phaseDeg: number;
+  thdPercent: number;
+  /** midband gain from the driven grid (sign = phase) */
+  gain: number;
+  outputImpedance: number;
+  /** DC voltage of the output node at idle (before any coupling capacitor), V */
+  dcVoltage: number;
+  /** response from the source EMF to this output */
+  response: ResponsePoint[];
+  /** AC part of this output over one cycle (same instants as largeSignal.waveform.t) */
+  waveform: number[];
+};
+
+/** Amplitude ratio (second output over first, dB) and deviation from antiphase (degrees) at the drive frequency. */
+export type Balance = { ratioDb: number; phaseErrorDeg: number; frequency: number };
+
 export type StageAnalysis = {
   topology: string;
   operatingPoint: OperatingPoint;
@@ -99,6 +130,11 @@ export type StageAnalysis = {
   ratings: RatingCheck[];
   plot: StagePlot;
   warnings: string[];
+  /** phase splitters: each output by name (first the inverting / plate output) */
+  outputs?: Partial<Record<OutputName, StageOutput>>;
+  balance?: Balance;
+  /** phase splitters: tail current (long-tailed pair) or cathode current, A */
+  tailCurrent?: number;
   /** output stages with a transformer entered beyond the ideal one */
   transformer?: TransformerAnalysis;
 };

@@ -3,9 +3,10 @@ import { fivePoint, harmonicAmplitudes, thdFromAmplitudes, threePoint } from '..
 import { CalcError } from '../errors';
 import { tubeDerivatives, tubeModel, type TubeModel } from '../models/registry';
 import { checkRatings } from '../ratings';
-import { cutoff, firstOrderLowPass, responseCurve, type ResponseFactor } from '../response';
+import { compileAc, cutoffAc, GROUND, responseCurveAc, SOURCE, tubeElements, type AcElement, type AcOutput, type AcRef, type AcSystem } from '../ac';
+import { linearise } from './ac-networks';
 import { expandUpper, solveIncreasing } from '../solve';
-import type { HeadroomLimit, StageAnalysis } from '../types';
+import type { HeadroomLimit, OperatingPoint, StageAnalysis } from '../types';
 import { mean, nearestLimit, SAMPLES_PER_CYCLE as SAMPLES, sineDrive, steadyState } from './cycle';
 import { solveNetwork } from './network';
 import { modelEvaluations } from '../models/registry';
@@ -40,7 +41,7 @@ type PPNet = {
 
 const TOL = 1e-15;
 
-type PPCtx = { net: PPNet; vin: number; m: PPMeans; i1: number | undefined; i2: number | undefined; v: number | undefined; ig2: number | undefined };
+type PPCtx = { net: PPNet; vin: number; vin2: number; m: PPMeans; i1: number | undefined; i2: number | undefined; v: number | undefined; ig2: number | undefined };
 
 function platePP(c: PPCtx, vp0: number, vgk: number, vg2k: number, vk: number, guess: number | undefined): number {
   const { model, halfRdc } = c.net;
@@ -53,7 +54,7 @@ function innerPP(c: PPCtx, vk: number): PPSample {
   const { net, vin, m } = c;
   const { model } = net;
   const vgk1 = net.gridBias + vin - vk;
-  const vgk2 = net.gridBias - vin - vk;
+  const vgk2 = net.gridBias + c.vin2 - vk;
   let vg2 = vk;
   let ig2a = 0;
   let ig2b = 0;
@@ -118,7 +119,7 @@ const RPP = new Float64Array(4);
  *   F2 = T − Ig2(Vgk1, Vg2k) − Ig2(Vgk2, Vg2k),         F3 = Ik − (all cathode currents),
  * unused unknowns held at 0 by identity rows. Analytic Jacobian, step halving; null if it does not converge.
  */
-function newtonPP(net: PPNet, vin: number, m: PPMeans, guess: PPSample): PPSample | null {
+function newtonPP(net: PPNet, vin: number, m: PPMeans, guess: PPSample, vin2 = -vin): PPSample | null {
   const { model } = net;
   const pD = model.plateCurrentD;
   const gD = model.gridCurrentD;
@@ -157,7 +158,7 @@ function newtonPP(net: PPNet, vin: number, m: PPMeans, guess: PPSample): PPSampl
   for (let iter = 0; iter < 40; iter++) {
     const vk = kc + R * ik;
     const vgk1 = net.gridBias + vin - vk;
-    const vgk2 = net.gridBias - vin - vk;
+    const vgk2 = net.gridBias + vin2 - vk;
     const vg2k = pent ? v0 - sac * t - vk : 0;
     const v = (i1 - i2) * r;
     const a1 = pD(vct - v - h * i1 - vk, vgk1, vg2k, P1);
@@ -269,13 +270,14 @@ function newtonPP(net: PPNet, vin: number, m: PPMeans, guess: PPSample): PPSampl
   return { i1, i2, ig2a, ig2b, ig1, ig2, v: (i1 - i2) * r, vk, vg2 };
 }
 
-function solvePP(net: PPNet, vin: number, m: PPMeans, guess?: PPSample): PPSample {
+/** One instant of the push-pull circuit; grid 2's drive is the antiphase of grid 1's unless given. */
+function solvePP(net: PPNet, vin: number, m: PPMeans, guess?: PPSample, vin2 = -vin): PPSample {
   if (guess) {
-    const r = newtonPP(net, vin, m, guess);
+    const r = newtonPP(net, vin, m, guess, vin2);
     if (r) return r;
     modelEvaluations.newtonFallbacks++;
   }
-  return solvePPBracketed(net, vin, m, guess);
+  return solvePPBracketed(net, vin, m, guess, vin2);
 }
 
 /** Quadratic extrapolation of the next push-pull sample (a Newton start). */
@@ -299,8 +301,8 @@ function mirrorPP(s: PPSample): PPSample {
   return { i1: s.i2, i2: s.i1, ig2a: s.ig2b, ig2b: s.ig2a, ig1: s.ig2, ig2: s.ig1, v: -s.v, vk: s.vk, vg2: s.vg2 };
 }
 
-function solvePPBracketed(net: PPNet, vin: number, m: PPMeans, guess?: PPSample): PPSample {
-  const c: PPCtx = { net, vin, m, i1: guess?.i1, i2: guess?.i2, v: guess?.v, ig2: guess ? guess.ig2a + guess.ig2b : undefined };
+function solvePPBracketed(net: PPNet, vin: number, m: PPMeans, guess?: PPSample, vin2 = -vin): PPSample {
+  const c: PPCtx = { net, vin, vin2, m, i1: guess?.i1, i2: guess?.i2, v: guess?.v, ig2: guess ? guess.ig2a + guess.ig2b : undefined };
   const vkBase = net.rk * m.ik;
   if (net.rkAc === 0) return innerPP(c, vkBase);
   const g = guess ? totalPP(guess) : undefined;
@@ -370,11 +372,8 @@ export function analyzePushPullOutput(input: PushPullOutputInput, options?: Anal
   const caps = model.capacitances;
   const cin = Math.max(0, caps.cga * (1 - aPlate) + caps.cgk * (1 - aCathode));
   const zOut = 2 * d.ra + input.primaryResistance;
-  const factors: ResponseFactor[] = [];
-  const rs = input.sourceResistance > 0 ? (input.sourceResistance * input.gridResistor) / (input.sourceResistance + input.gridResistor) : 0;
-  if (rs > 0 && cin > 0) factors.push(firstOrderLowPass(rs * cin));
-  const cout = (caps.cak + caps.cga) / 2;
-  if (cout > 0) factors.push(firstOrderLowPass(((zOut * raa) / (zOut + raa)) * cout));
+  // response: the antisymmetric half circuit solved as a network (cathode and screen at AC ground)
+  const ac = pushPullHalfAc(model, op, input.sourceResistance, input.gridResistor, halfRdc, raa);
 
   const keys: Array<keyof PPMeans> = [];
   if (bypassed) keys.push('ik');
@@ -531,9 +530,9 @@ export function analyzePushPullOutput(input: PushPullOutputInput, options?: Anal
       gainDb: dbOf(Math.abs(gain)),
       outputImpedance: zOut,
       inputCapacitance: cin,
-      lowCutoff: cutoff(factors, 'low'),
-      highCutoff: cutoff(factors, 'high'),
-      response: quick ? [] : responseCurve(gain, factors),
+      lowCutoff: cutoffAc(ac.sys, ac.out, 'low'),
+      highCutoff: cutoffAc(ac.sys, ac.out, 'high'),
+      response: quick ? [] : responseCurveAc(ac.sys, ac.out),
     },
     largeSignal: {
       drive: amp,
@@ -554,5 +553,167 @@ export function analyzePushPullOutput(input: PushPullOutputInput, options?: Anal
     ratings,
     plot: quick ? { ...EMPTY_PLOT, operatingPoint: { va: opPoint.plateCathodeVoltage, ia: opPoint.plateCurrent } } : stagePlot(model, opPoint, halfRdc + 2 * rk, raa / 4, input.supply, input.tube),
     warnings,
+  };
+}
+
+/**
+ * The linearised push-pull pair for the response: with antiphase drive the shared cathode and screen nodes carry
+ * no signal, so one tube with Rdc/2 and Raa/2 to AC ground stands for the pair; the plate-to-plate output is
+ * −2× the voltage across that Raa/2.
+ */
+export function pushPullHalfAc(
+  model: TubeModel,
+  op: { vp: number; vk: number; vg: number; vg2: number },
+  sourceResistance: number,
+  gridResistor: number,
+  halfRdc: number,
+  raa: number,
+): { sys: AcSystem; out: AcOutput } {
+  let n = 0;
+  const el: AcElement[] = [];
+  const grid: AcRef = sourceResistance > 0 ? n++ : SOURCE;
+  if (sourceResistance > 0) el.push({ kind: 'r', a: SOURCE, b: grid, r: sourceResistance }, { kind: 'r', a: grid, b: GROUND, r: gridResistor });
+  const plate = n++;
+  const half: AcRef = halfRdc > 0 ? n++ : plate;
+  if (halfRdc > 0) el.push({ kind: 'r', a: plate, b: half, r: halfRdc });
+  el.push({ kind: 'r', a: half, b: GROUND, r: raa / 2 });
+  const d = linearise(model, op.vp - op.vk, op.vg - op.vk, op.vg2 - op.vk);
+  el.push(...tubeElements({ p: plate, g: grid, k: GROUND, s: model.kind === 'pentode' ? GROUND : undefined }, d, model.capacitances));
+  return { sys: compileAc({ n, elements: el }), out: { node: half, scale: -2 } };
+}
+
+/** Drive of each grid over one cycle (V relative to the grid bias), equal lengths, a power of two ≥ 16. */
+export type PushPullGridDrives = { grid1: ArrayLike<number>; grid2: ArrayLike<number> };
+
+/** Two sine drives given by amplitude (V peak) and phase (degrees) per grid, sampled over one cycle. */
+export function sineGridDrives(
+  grid1: { amplitude: number; phaseDeg: number },
+  grid2: { amplitude: number; phaseDeg: number },
+  samples = SAMPLES,
+): PushPullGridDrives {
+  const wave = (d: { amplitude: number; phaseDeg: number }) =>
+    Float64Array.from({ length: samples }, (_, k) => d.amplitude * Math.sin((2 * Math.PI * k) / samples + (d.phaseDeg * Math.PI) / 180));
+  return { grid1: wave(grid1), grid2: wave(grid2) };
+}
+
+export type PushPullDrivenResult = {
+  /** plate-to-plate voltage (the reflected load's) per sample, its fundamental and THD */
+  output: number[];
+  outputAmplitude: number;
+  thdPercent: number;
+  harmonics: { order: number; amplitude: number; db: number }[];
+  /** power into the plate-to-plate load (the reflected speaker load), W */
+  outputPower: number;
+  /** per sample: plate currents and grid currents of each tube (A), cathode voltage (V) */
+  plateCurrent1: number[];
+  plateCurrent2: number[];
+  gridCurrent1: number[];
+  gridCurrent2: number[];
+  cathodeVoltage: number[];
+  /** cycle means the bypass capacitors settled at (total cathode current, total screen current), A */
+  means: { cathodeCurrent: number; screenCurrent: number };
+  /** change of the average plate current of both tubes from idle, A */
+  dcShift: number;
+  /** largest grid-to-cathode voltage of either tube over the cycle, V (positive: grid current flows) */
+  maxGridCathodeVoltage: number;
+  /** idle operating point of each tube */
+  idle: OperatingPoint;
+};
+
+/**
+ * The push-pull pair driven by two separate grid waveforms (a phase splitter's real outputs, with their imbalance
+ * and distortion), instead of the ideal antiphase drive of `analyzePushPullOutput`. The whole cycle is solved (no
+ * half-wave symmetry) with the bypass capacitors at their steady state. `input.drive` is ignored.
+ */
+export function analyzePushPullDriven(input: PushPullOutputInput, drives: PushPullGridDrives): PushPullDrivenResult {
+  const n = drives.grid1.length;
+  if (n !== drives.grid2.length || n < 16 || (n & (n - 1)) !== 0) {
+    throw new CalcError('invalid-input', 'The two grid drives must have the same length, a power of two of at least 16 samples.');
+  }
+  const model = tubeModel(input.tube);
+  if (model.kind === 'pentode' && !input.screen) throw new CalcError('invalid-input', 'A pentode or beam tetrode needs a screen supply.');
+  const halfRdc = input.primaryResistance / 2;
+  const xf = input.transformer;
+  const nominalRaa = input.plateToPlateImpedance;
+  const raa = nominalRaa + (xf ? turnsRatio({ primaryImpedance: nominalRaa, speakerLoad: xf.speakerLoad }) ** 2 * (xf.secondaryResistance ?? 0) : 0);
+  const rk = input.bias.kind === 'cathode' ? input.bias.cathodeResistor : 0;
+  const bypassed = input.bias.kind === 'cathode' && input.bias.cathodeBypass !== null;
+  const screen = model.kind === 'pentode' && input.screen ? screenParts(input.screen, input.supply).net : null;
+  const gridBias = input.bias.kind === 'fixed' ? input.bias.fixedBias : 0;
+  const op = solveNetwork(
+    {
+      model,
+      supply: input.supply,
+      plateDc: halfRdc,
+      plateAc: halfRdc,
+      cathodeDc: 2 * rk,
+      cathodeAc: 2 * rk,
+      gridOffset: gridBias,
+      gridPerCathodeCurrent: 0,
+      screen: screen ? { supply: screen.supply, dc: 2 * screen.dc, ac: 2 * screen.dc } : null,
+      output: 'plate',
+    },
+    0,
+    null,
+  );
+  checkIdle(op, input.supply);
+  const net: PPNet = { model, supply: input.supply, halfRdc, raa, gridBias, rk, rkAc: bypassed ? 0 : rk, screen };
+  const m0: PPMeans = { ik: 2 * op.ik, ig2: 2 * op.ig2 };
+  const idleState: PPSample = { i1: op.ia, i2: op.ia, ig2a: op.ig2, ig2b: op.ig2, ig1: 0, ig2: 0, v: 0, vk: op.vk, vg2: op.vg2 };
+  const seed = solvePP(net, 0, m0, idleState);
+  const keys: Array<keyof PPMeans> = [];
+  if (bypassed) keys.push('ik');
+  if (screen && screen.ac !== screen.dc) keys.push('ig2');
+  const g1 = Array.from(drives.grid1);
+  const g2 = Array.from(drives.grid2);
+  // coarse cycles take every k-th sample of the given drives
+  const sub = (w: number[], count: number) => Array.from({ length: count }, (_, k) => w[(k * w.length) / count] as number);
+  const lastCycle = new Map<number, PPSample[]>();
+  const steady = steadyState<PPMeans, PPSample[]>(
+    keys,
+    m0,
+    (m, count) => {
+      const c = count ?? n;
+      const w1 = c === n ? g1 : sub(g1, c);
+      const w2 = c === n ? g2 : sub(g2, c);
+      const old = lastCycle.get(c);
+      const samples = new Array<PPSample>(c);
+      let ik = 0;
+      let ig2 = 0;
+      for (let k = 0; k < c; k++) {
+        const start = old ? (old[k] as PPSample) : k === 0 ? seed : extrapolatePP(samples[k - 1] as PPSample, samples[k - 2], samples[k - 3]);
+        const sk = solvePP(net, w1[k] ?? 0, m, start, w2[k] ?? 0);
+        samples[k] = sk;
+        ik += totalPP(sk);
+        ig2 += sk.ig2a + sk.ig2b;
+      }
+      lastCycle.set(c, samples);
+      return { means: { ik: ik / c, ig2: ig2 / c }, result: samples };
+    },
+    undefined,
+    Math.max(16, n / 8),
+  );
+  const samples = steady.result;
+  const output = samples.map((s) => 2 * s.v);
+  const amps = harmonicAmplitudes(output, 10);
+  const h1 = amps[1] ?? 0;
+  return {
+    output,
+    outputAmplitude: h1,
+    thdPercent: 100 * thdFromAmplitudes(amps, 10),
+    harmonics: Array.from({ length: 9 }, (_, i) => {
+      const a = amps[i + 2] ?? 0;
+      return { order: i + 2, amplitude: a, db: dbOf(h1 > 0 ? a / h1 : 0) };
+    }),
+    outputPower: (h1 * h1) / (2 * raa),
+    plateCurrent1: samples.map((s) => s.i1),
+    plateCurrent2: samples.map((s) => s.i2),
+    gridCurrent1: samples.map((s) => s.ig1),
+    gridCurrent2: samples.map((s) => s.ig2),
+    cathodeVoltage: samples.map((s) => s.vk),
+    means: { cathodeCurrent: steady.means.ik, screenCurrent: steady.means.ig2 },
+    dcShift: mean(samples.map((s) => s.i1 + s.i2)) - 2 * op.ia,
+    maxGridCathodeVoltage: Math.max(...samples.map((s, k) => Math.max(gridBias + (g1[k] ?? 0) - s.vk, gridBias + (g2[k] ?? 0) - s.vk))),
+    idle: operatingPointOf(op, model),
   };
 }

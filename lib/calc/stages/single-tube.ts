@@ -4,15 +4,8 @@ import { CalcError } from '../errors';
 import { tubeDerivatives, type TubeModel } from '../models/registry';
 import { loadLine, paMaxCurve, plateCurveFamily, transferCurve } from '../plot';
 import { checkRatings } from '../ratings';
-import {
-  bypassFactor,
-  cutoff,
-  firstOrderHighPass,
-  firstOrderLowPass,
-  fitBilinear,
-  responseCurve,
-  type ResponseFactor,
-} from '../response';
+import { cutoffAc, responseCurveAc } from '../ac';
+import { singleTubeAc } from './ac-networks';
 import type { HeadroomLimit, LargeSignal, OperatingPoint, StageAnalysis, StagePlot } from '../types';
 import { mean, nearestLimit, SAMPLES_PER_CYCLE, sineDrive, steadyState } from './cycle';
 import { activeMeans, extrapolate, outputVoltage, solveNetwork, type Means, type SampleState, type SingleTubeNetwork } from './network';
@@ -133,25 +126,8 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
   const zOut = spec.outputShunt !== null ? (spec.outputShunt * zTube) / (spec.outputShunt + zTube) : zTube;
   const caps = model.capacitances;
   const cin = Math.max(0, caps.cga * (1 - g.plate) + caps.cgk * (1 - g.cathode));
-  const factors: ResponseFactor[] = [];
-  const rsEff = input.sourceResistance > 0 ? (input.sourceResistance * input.gridResistor) / (input.sourceResistance + input.gridResistor) : 0;
-  if (rsEff > 0 && cin > 0) factors.push(firstOrderLowPass(rsEff * cin));
-  const cout = net.output === 'plate' ? caps.cak + caps.cga : caps.cak;
-  const loadR = spec.coupling?.resistance;
-  const zNode = loadR !== undefined ? (zOut * loadR) / (zOut + loadR) : spec.transformerLoad !== null ? (zTube * net.plateAc) / (zTube + net.plateAc) : zOut;
-  if (cout > 0) factors.push(firstOrderLowPass(zNode * cout));
-  if (spec.cathodeBypass) {
-    const r = spec.cathodeBypass.resistor;
-    const at = (z: number) => gainOf({ ...net, cathodeAc: z }, m0, op).out;
-    factors.push(bypassFactor(fitBilinear(r / 2, gain, at(r / 2), r, at(r)), r, spec.cathodeBypass.capacitor));
-  }
-  if (spec.screenBypass && net.screen) {
-    const r = spec.screenBypass.resistor;
-    const screen = net.screen;
-    const at = (z: number) => gainOf({ ...net, screen: { ...screen, ac: z } }, m0, op).out;
-    factors.push(bypassFactor(fitBilinear(r / 2, gain, at(r / 2), r, at(r)), r, spec.screenBypass.capacitor));
-  }
-  if (spec.coupling) factors.push(firstOrderHighPass(spec.coupling.capacitor * (zOut + spec.coupling.resistance)));
+  // frequency response: the linearised network solved as a whole at each frequency, from the source EMF
+  const ac = singleTubeAc(spec, op);
 
   // large signal
   const amp = input.drive.amplitude;
@@ -296,9 +272,9 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
       gainDb: dbOf(Math.abs(gain)),
       outputImpedance: finite(zOut, 1e12),
       inputCapacitance: cin,
-      lowCutoff: cutoff(factors, 'low'),
-      highCutoff: cutoff(factors, 'high'),
-      response: quick ? [] : responseCurve(gain, factors),
+      lowCutoff: cutoffAc(ac.sys, ac.out, 'low'),
+      highCutoff: cutoffAc(ac.sys, ac.out, 'high'),
+      response: quick ? [] : responseCurveAc(ac.sys, ac.out),
     },
     largeSignal,
     ratings,
