@@ -21,12 +21,12 @@ export function Badge({ className, tone, ...props }: React.HTMLAttributes<HTMLSp
 }
 
 const STATUS_TONE = {
-  ok: 'ok', near: 'near', over: 'over', 'not-checked': 'neutral',
+  ok: 'ok', near: 'near', over: 'over', under: 'over', 'not-checked': 'neutral', 'not-modelled': 'neutral',
   pass: 'ok', check: 'near', fail: 'over',
   sent: 'ok', queued: 'info', failed: 'over',
   approved: 'ok', submitted: 'info', 'in-review': 'info', 'changes-requested': 'near', draft: 'neutral',
 } as const;
-const STATUS_WORD: Record<string, string> = { 'not-checked': 'not checked', 'changes-requested': 'changes requested', 'in-review': 'in review' };
+const STATUS_WORD: Record<string, string> = { 'not-checked': 'not checked', 'not-modelled': 'not modelled', 'changes-requested': 'changes requested', 'in-review': 'in review' };
 
 // Status is always a word as well as a colour.
 export function StatusBadge({ status, className }: { status: keyof typeof STATUS_TONE; className?: string }) {

@@ -101,7 +101,8 @@ export type BenchComparison = {
   tolerance: number;
   toleranceSource: ToleranceSource;
   limit: number | null;
-  ratingStatus: RatingCheck['status'];
+  /** 'under': below the allowed band of a nominal value (a low heater), which is not "over" anything */
+  ratingStatus: RatingCheck['status'] | 'under';
   status: BenchVerdict;
   advice: string | null;
 };
@@ -204,6 +205,22 @@ const ADVICE: Partial<Record<BenchQuantity, { high: string; low: string }>> = {
   },
 };
 
+// With fixed bias the grid voltage comes from a bias supply, not a cathode resistor: the advice points there.
+const FIXED_BIAS_ADVICE: Partial<Record<BenchQuantity, { high: string; low: string }>> = {
+  plateCurrent: {
+    high: 'the grid bias is less negative than designed: measure the bias voltage at the grid and set the bias adjustment; a leaky coupling capacitor or a worn or mismatched tube also does this',
+    low: 'the grid bias is more negative than designed (measure it at the grid and check the bias adjustment), or the tube is weak or worn, or the heater voltage is low',
+  },
+  plateVoltage: {
+    high: 'less current flows through the plate load than designed: see the plate current and the grid bias',
+    low: 'more current flows through the plate load than designed: see the plate current and the grid bias',
+  },
+  plateDissipation: {
+    high: 'the tube runs hotter than designed: make the grid bias more negative before it shortens the tube’s life',
+    low: 'the tube runs cooler than designed: see the plate current and the grid bias',
+  },
+};
+
 function compare(opts: {
   key: BenchQuantity;
   measured: number;
@@ -211,8 +228,10 @@ function compare(opts: {
   design: number | null;
   tolerance: { value: number; source: ToleranceSource };
   limit?: number | null;
-  /** the design value itself is the rating (heater): outside the tolerance band is over the rating */
+  /** the design value itself is the rating (heater): outside the tolerance band is over (or under) the rating */
   designIsRating?: boolean;
+  /** the stage is fixed-bias (advice about the bias supply instead of a cathode resistor) */
+  fixedBias?: boolean;
 }): BenchComparison {
   const meta = META[opts.key];
   const tol = opts.tolerance.value;
@@ -220,18 +239,18 @@ function compare(opts: {
   const deviation = design !== null ? (opts.measured - design) / design : null;
   const limit = opts.limit && opts.limit > 0 ? opts.limit : null;
 
-  let ratingStatus: RatingCheck['status'] = 'not-checked';
-  if (opts.designIsRating && deviation !== null) ratingStatus = Math.abs(deviation) > tol ? 'over' : 'ok';
+  let ratingStatus: BenchComparison['ratingStatus'] = 'not-checked';
+  if (opts.designIsRating && deviation !== null) ratingStatus = Math.abs(deviation) > tol ? (deviation > 0 ? 'over' : 'under') : 'ok';
   else if (limit !== null) ratingStatus = opts.measured > limit ? 'over' : opts.measured >= RATING_NEAR_FRACTION * limit ? 'near' : 'ok';
 
   let status: BenchVerdict = 'pass';
-  if (ratingStatus === 'over') status = 'fail';
+  if (ratingStatus === 'over' || ratingStatus === 'under') status = 'fail';
   else if (deviation !== null && Math.abs(deviation) > FAR_OUTSIDE_FACTOR * tol) status = 'fail';
   else if ((deviation !== null && Math.abs(deviation) > tol) || ratingStatus === 'near') status = 'check';
 
   let advice: string | null = null;
   if (status !== 'pass') {
-    const words = ADVICE[opts.key];
+    const words = (opts.fixedBias ? FIXED_BIAS_ADVICE[opts.key] : undefined) ?? ADVICE[opts.key];
     const name = meta.label.charAt(0).toUpperCase() + meta.label.slice(1);
     const parts: string[] = [];
     if (ratingStatus === 'over' && !opts.designIsRating && limit !== null) {
@@ -286,7 +305,7 @@ export function evaluateBenchCheck(design: BenchDesign, readings: BenchReadings,
 
   const rows: BenchComparison[] = [];
   rows.push(compare({ key: 'supplyVoltage', measured: r.supplyVoltage, derived: false, design: design.supply, tolerance: tolerances.supplyVoltage }));
-  rows.push(compare({ key: 'plateVoltage', measured: r.plateVoltage, derived: false, design: op?.plateVoltage ?? null, tolerance: tolerances.plateVoltage }));
+  rows.push(compare({ key: 'plateVoltage', measured: r.plateVoltage, derived: false, design: op?.plateVoltage ?? null, tolerance: tolerances.plateVoltage, fixedBias: design.fixedBias }));
   if (!design.fixedBias || r.cathodeVoltage > 0) {
     rows.push(compare({ key: 'cathodeVoltage', measured: r.cathodeVoltage, derived: false, design: op?.cathodeVoltage ?? null, tolerance: tolerances.cathodeVoltage }));
   }
@@ -296,9 +315,9 @@ export function evaluateBenchCheck(design: BenchDesign, readings: BenchReadings,
   if (typeof r.heaterVoltage === 'number' && r.heaterVoltage > 0) {
     rows.push(compare({ key: 'heaterVoltage', measured: r.heaterVoltage, derived: false, design: design.heaterNominal, tolerance: tolerances.heaterVoltage, designIsRating: true }));
   }
-  rows.push(compare({ key: 'plateCurrent', measured: ia.plateCurrent, derived: ia.method !== 'measured', design: op?.plateCurrent ?? null, tolerance: tolerances.plateCurrent, limit: design.pentode ? null : design.limits.cathodeCurrent }));
+  rows.push(compare({ key: 'plateCurrent', measured: ia.plateCurrent, derived: ia.method !== 'measured', design: op?.plateCurrent ?? null, tolerance: tolerances.plateCurrent, limit: design.pentode ? null : design.limits.cathodeCurrent, fixedBias: design.fixedBias }));
   rows.push(compare({ key: 'plateCathodeVoltage', measured: vpk, derived: true, design: op?.plateCathodeVoltage ?? null, tolerance: tolerances.plateCathodeVoltage, limit: design.limits.plateVoltage }));
-  rows.push(compare({ key: 'plateDissipation', measured: pa, derived: true, design: op?.plateDissipation ?? null, tolerance: tolerances.plateDissipation, limit: design.limits.plateDissipation }));
+  rows.push(compare({ key: 'plateDissipation', measured: pa, derived: true, design: op?.plateDissipation ?? null, tolerance: tolerances.plateDissipation, limit: design.limits.plateDissipation, fixedBias: design.fixedBias }));
   if (screenDissipation !== null) {
     rows.push(compare({ key: 'screenDissipation', measured: screenDissipation, derived: true, design: op?.screenDissipation ?? null, tolerance: tolerances.screenDissipation, limit: design.limits.screenDissipation }));
   }

@@ -101,7 +101,10 @@ describe('bench check: triode with cathode bias', () => {
     expect(row(ok, 'heaterVoltage').status).toBe('pass');
     const low = evaluateBenchCheck(triode, { supplyVoltage: 328, plateVoltage: 224, cathodeVoltage: 1.58, heaterVoltage: 11.2 });
     expect(row(low, 'heaterVoltage').deviation).toBeCloseTo(-0.1111, 3);
-    expect(row(low, 'heaterVoltage').ratingStatus).toBe('over');
+    // a low heater is under its nominal band, not over anything (common practice: ±10 % of nominal)
+    expect(row(low, 'heaterVoltage').ratingStatus).toBe('under');
+    const high = evaluateBenchCheck(triode, { supplyVoltage: 328, plateVoltage: 224, cathodeVoltage: 1.58, heaterVoltage: 14.0 });
+    expect(row(high, 'heaterVoltage').ratingStatus).toBe('over');
     expect(low.verdict).toBe('fail');
     expect(low.summary[0]).toMatch(/Heater voltage 11 % below nominal/);
   });
@@ -206,6 +209,16 @@ describe('bench check: transformer-loaded and fixed-bias stages', () => {
     expect(r.derived.plateDissipation).toBeCloseTo(316 * 0.0439, 6);
     expect(row(r, 'plateCurrent').status).toBe('pass');
     expect(row(r, 'plateDissipation').ratingStatus).toBe('near');
+  });
+
+  it('gives fixed-bias advice about the grid bias, never about a cathode resistor', () => {
+    // 52 mA where 40 mA was designed (+30 %): the bias supply is the place to look on a fixed-bias stage
+    const hot = evaluateBenchCheck({ ...pp, primaryResistance: null }, { supplyVoltage: 320, plateVoltage: 316, cathodeVoltage: 0, measuredCurrent: 0.052 });
+    const advice = row(hot, 'plateCurrent').advice!;
+    expect(advice).toMatch(/grid bias is less negative than designed/);
+    expect(hot.summary.join(' ')).not.toMatch(/cathode resistor/);
+    const cold = evaluateBenchCheck({ ...pp, primaryResistance: null }, { supplyVoltage: 320, plateVoltage: 316, cathodeVoltage: 0, measuredCurrent: 0.03 });
+    expect(row(cold, 'plateCurrent').advice).toMatch(/grid bias is more negative than designed/);
   });
 
   it('counts a shared cathode resistor twice for each tube of a push-pull pair', () => {
