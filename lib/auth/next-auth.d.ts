@@ -10,5 +10,7 @@ declare module 'next-auth/jwt' {
   interface JWT {
     uid: number;
     role: Role;
+    /** user_sessions row of this sign-in */
+    sid?: string;
   }
 }

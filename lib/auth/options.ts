@@ -8,6 +8,7 @@ import { recordAudit } from '@/lib/db/audit';
 import { signInSchema } from '@/lib/validation/auth';
 import { User, type Role } from '@/models';
 import { clientAddress } from './client-address';
+import { openSession, revokeSession, SESSION_MAX_AGE_S } from './sessions';
 import { assertNotLocked, clearFailures, recordFailure, throttleKeys } from './throttle';
 
 // bcrypt runs for unknown accounts too (against this hash of a random password, same cost as real hashes), so
@@ -16,7 +17,7 @@ const DUMMY_HASH = bcrypt.hashSync(randomBytes(16).toString('hex'), 10);
 
 export const authOptions: NextAuthOptions = {
   secret: env.NEXTAUTH_SECRET,
-  session: { strategy: 'jwt', maxAge: 12 * 60 * 60 },
+  session: { strategy: 'jwt', maxAge: SESSION_MAX_AGE_S },
   pages: { signIn: '/sign-in' },
   providers: [
     CredentialsProvider({
@@ -41,11 +42,18 @@ export const authOptions: NextAuthOptions = {
       },
     }),
   ],
+  events: {
+    // Signing out ends the session on the server too: the token stops working at once, wherever a copy is.
+    async signOut({ token }) {
+      if (typeof token?.sid === 'string') await revokeSession(token.sid);
+    },
+  },
   callbacks: {
     async jwt({ token, user }) {
       if (user) {
         token.uid = Number(user.id);
         token.role = (user as unknown as { role: Role }).role;
+        token.sid = await openSession(token.uid);
       }
       return token;
     },

@@ -3,6 +3,7 @@ import { encode } from 'next-auth/jwt';
 import { NextRequest } from 'next/server';
 import { User } from '@/models';
 import '@/lib/db';
+import { openSession } from '@/lib/auth/sessions';
 
 export const DEMO = {
   admin: 'admin@anodyne.test',
@@ -16,7 +17,8 @@ export const DEMO_PASSWORD = process.env.DEMO_PASSWORD ?? 'anodyne-demo';
 export async function sessionCookie(email: string) {
   const user = await User.findOne({ where: { email } });
   if (!user) throw new Error(`no user ${email}`);
-  const token = await encode({ token: { uid: user.id, role: user.role, email: user.email, name: user.displayName }, secret: process.env.NEXTAUTH_SECRET! });
+  const sid = await openSession(user.id);
+  const token = await encode({ token: { uid: user.id, role: user.role, email: user.email, name: user.displayName, sid }, secret: process.env.NEXTAUTH_SECRET! });
   return `next-auth.session-token=${token}`;
 }
 
