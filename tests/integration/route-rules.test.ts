@@ -124,6 +124,27 @@ export const RULES: Rule[] = [
     allowed: ALL,
     ok: 200,
   },
+  {
+    route: 'POST /api/analyze-chain',
+    handler: async () => (await import('@/app/api/analyze-chain/route')).POST,
+    request: {
+      method: 'POST',
+      body: {
+        input: { amplitude: 0.05, frequency: 1000 },
+        stages: [
+          {
+            id: 'v1', topology: 'common-cathode', tube: { model: 'koren-triode', mu: 100, ex: 1.4, kg1: 1060, kp: 600, kvb: 300 },
+            supply: 250, gridResistor: '1M', plateResistor: '100k', bias: { kind: 'cathode', cathodeResistor: '1k5', cathodeBypass: '22u' },
+          },
+          { id: 'vol', topology: 'volume-control', resistance: '250k', taper: 'log', setting: 0.5 },
+        ],
+        links: [{ from: 'v1', to: 'vol', coupling: { kind: 'capacitor', capacitance: '47n' } }],
+        options: { sweep: false },
+      },
+    },
+    allowed: ALL,
+    ok: 200,
+  },
   // --- bench checks and review ---
   { route: 'GET /api/stages/{id}/bench-checks', handler: async () => (await import('@/app/api/stages/[id]/bench-checks/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
   {
