@@ -11,7 +11,7 @@ import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { DataTable } from '@/components/ui/data-table';
 import { Field } from '@/components/ui/field';
 import { Input, Select } from '@/components/ui/input';
-import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
+import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import { inviteSchema, type InviteInput } from '@/lib/validation/auth';
 import { ROLE_LABELS, ROLE_VALUES } from '@/lib/validation/roles';
 

@@ -7,7 +7,7 @@ import { useForm } from 'react-hook-form';
 import { Button } from '@/components/ui/button';
 import { Field } from '@/components/ui/field';
 import { Input } from '@/components/ui/input';
-import { fetchJson } from '@/lib/queries/fetch-json';
+import { fetchJson } from '@/lib/hooks/fetch-json';
 import { acceptInvitationSchema, type AcceptInvitationInput } from '@/lib/validation/auth';
 
 export function AcceptInvitationForm({ token }: { token: string }) {

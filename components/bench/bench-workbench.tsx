@@ -11,7 +11,7 @@ import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { Input, Select, Textarea } from '@/components/ui/input';
 import type { BenchCheckDTO, BenchContext, BenchPhoto } from '@/lib/bench/service';
-import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
+import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import { formatDateTime } from '@/lib/utils';
 import { benchCheckSchema, type BenchCheckInput, type BenchCheckValues } from '@/lib/validation/bench';
 import { BenchCheckCard } from './bench-check-card';

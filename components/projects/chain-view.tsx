@@ -7,7 +7,7 @@ import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Input } from '@/components/ui/input';
 import type { ChainResult, ChainStageResult } from '@/lib/calc/chain';
 import type { ProjectDetail } from '@/lib/projects/service';
-import { fetchJson } from '@/lib/queries/fetch-json';
+import { fetchJson } from '@/lib/hooks/fetch-json';
 import { LIMIT_WORDS } from '@/lib/report/labels';
 import { formatEng } from '@/lib/format/number';
 import { cn } from '@/lib/utils';

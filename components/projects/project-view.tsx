@@ -12,7 +12,7 @@ import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { Input, Textarea } from '@/components/ui/input';
 import type { ProjectDetail, StageDTO, WatcherOption } from '@/lib/projects/service';
-import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
+import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import { TOPOLOGY_LABELS } from '@/lib/report/labels';
 import { formatEng } from '@/lib/format/number';
 import { cn } from '@/lib/utils';

@@ -14,7 +14,7 @@ import { DataTable } from '@/components/ui/data-table';
 import { Field } from '@/components/ui/field';
 import { Input, Select, Textarea } from '@/components/ui/input';
 import type { ProjectDetail, ProjectListRow } from '@/lib/projects/service';
-import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
+import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import { createProjectSchema, PROJECT_STATUSES, type CreateProjectInput } from '@/lib/validation/project';
 
 const STATUS_WORDS: Record<string, string> = { draft: 'Draft', 'in-review': 'In review', approved: 'Approved', 'changes-requested': 'Changes requested' };

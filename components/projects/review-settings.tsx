@@ -7,7 +7,7 @@ import { Field } from '@/components/ui/field';
 import { Input, Select } from '@/components/ui/input';
 import { BENCH_QUANTITIES, DEFAULT_BENCH_TOLERANCE } from '@/lib/calc/bench';
 import type { ProjectDetail, WatcherOption } from '@/lib/projects/service';
-import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
+import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import { benchTolerancesSchema, type BenchToleranceKey } from '@/lib/validation/project';
 
 // The form holds percent as typed; the API and the database hold fractions (0.05 = ±5 %).

@@ -8,7 +8,7 @@ import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { Input } from '@/components/ui/input';
 import type { ProjectDetail } from '@/lib/projects/service';
-import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
+import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import { formatEng } from '@/lib/format/number';
 import { projectSupplySchema, type ProjectSupply, type ProjectSupplyInput } from '@/lib/validation/project';
 

@@ -6,7 +6,7 @@ import { Button } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { Textarea } from '@/components/ui/input';
-import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
+import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import { decisionSchema } from '@/lib/validation/review';
 
 export function DecisionForm({ revisionId, number, blocker, movedOn = null }: { revisionId: number; number: number; blocker: string | null; movedOn?: string | null }) {

@@ -12,7 +12,7 @@ import { Badge, StatusBadge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
 import { Card, CardHeader } from '@/components/ui/card';
 import type { TubeOption } from '@/lib/tubes/service';
-import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
+import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import {
   conflictCurrent,
   projectQueryOptions,
@@ -23,8 +23,8 @@ import {
   type LiveAnalysisState,
   type ProjectDetail,
   type StageDTO,
-} from '@/lib/queries/stages';
-import { fromStageInputs, newStageDefaults, parseStageForm, switchTopology, topologyLabel, type FieldErrorMap, type StageFormValues } from '@/lib/stage-form';
+} from '@/lib/hooks/stages';
+import { fromStageInputs, newStageDefaults, parseStageForm, switchTopology, topologyLabel, type FieldErrorMap, type StageFormValues } from '@/components/stage-editor/form';
 import { stageMetaSchema } from '@/lib/validation/project';
 import type { Topology } from '@/lib/validation/stage';
 import { cn } from '@/lib/utils';

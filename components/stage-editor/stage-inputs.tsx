@@ -7,7 +7,7 @@ import type { UseFormReturn } from 'react-hook-form';
 import { Field } from '@/components/ui/field';
 import { Input, Select } from '@/components/ui/input';
 import type { TubeOption } from '@/lib/tubes/service';
-import { BIAS_KINDS, FIELD_UNITS, TOPOLOGIES, sectionsFor, type FieldErrorMap, type StageFormValues } from '@/lib/stage-form';
+import { BIAS_KINDS, FIELD_UNITS, TOPOLOGIES, sectionsFor, type FieldErrorMap, type StageFormValues } from '@/components/stage-editor/form';
 import type { Topology } from '@/lib/validation/stage';
 import type { SupplyNodeRecord } from '@/models/types';
 import { cn } from '@/lib/utils';

@@ -9,7 +9,7 @@ import { Caution } from '@/components/shell/caution';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Select } from '@/components/ui/input';
 import type { CompareSeries, TubeOption } from '@/lib/tubes/service';
-import { fetchJson } from '@/lib/queries/fetch-json';
+import { fetchJson } from '@/lib/hooks/fetch-json';
 import { MODEL_KIND_LABELS } from '@/lib/validation/tube';
 import { formatMaybe } from '@/lib/format/number';
 

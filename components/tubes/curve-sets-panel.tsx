@@ -13,7 +13,7 @@ import { Input, Select } from '@/components/ui/input';
 import { validateUpload } from '@/lib/curves/validate-upload';
 import type { FitAnswer, FittedPlotCurve, MeasuredPlotPoint } from '@/lib/curves/service';
 import type { CurveSetRow, FitRow, TubeDetail } from '@/lib/tubes/service';
-import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
+import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import { formatDateTime } from '@/lib/utils';
 import { curveUploadFieldsSchema, type FitModel } from '@/lib/validation/curve-set';
 import { MODEL_KIND_LABELS } from '@/lib/validation/tube';

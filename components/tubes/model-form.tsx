@@ -7,7 +7,7 @@ import { Button } from '@/components/ui/button';
 import { Field } from '@/components/ui/field';
 import { Input, Select } from '@/components/ui/input';
 import type { TubeDetail } from '@/lib/tubes/service';
-import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
+import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import { modelInputSchema, type ModelInput, type ModelValues } from '@/lib/validation/tube';
 
 const TRIODE_FIELDS = [

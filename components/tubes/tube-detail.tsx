@@ -11,7 +11,7 @@ import { Button, buttonVariants } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Select } from '@/components/ui/input';
 import type { ModelRow, TubeDetail, TubePlot } from '@/lib/tubes/service';
-import { fetchJson } from '@/lib/queries/fetch-json';
+import { fetchJson } from '@/lib/hooks/fetch-json';
 import { MODEL_KIND_LABELS, RATING_KEYS, RATING_META } from '@/lib/validation/tube';
 import { AttachmentsPanel } from './attachments-panel';
 import { CurveSetsPanel } from './curve-sets-panel';

@@ -10,7 +10,7 @@ import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { Input, Select, Textarea } from '@/components/ui/input';
 import type { TubeDetail } from '@/lib/tubes/service';
-import { ApiRequestError, fetchJson } from '@/lib/queries/fetch-json';
+import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import { formatEng } from '@/lib/format/number';
 import { createTubeSchema, FAMILY_LABELS, RATING_KEYS, RATING_META, TUBE_FAMILIES } from '@/lib/validation/tube';
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { FIELD_UNITS, TOPOLOGIES, fromStageInputs, newStageDefaults, parseStageForm, toFieldText } from '@/lib/stage-form';
+import { FIELD_UNITS, TOPOLOGIES, fromStageInputs, newStageDefaults, parseStageForm, toFieldText } from '@/components/stage-editor/form';
 import { parseEng } from '@/lib/format/number';
 import { stageMemberSchemas } from '@/lib/validation/stage';
 
