@@ -20,7 +20,7 @@ export function BenchCheckCard({ check, highlight = false, bare = false, canUplo
   const body = (
     <div className="space-y-3">
       <div className="flex flex-wrap items-center gap-3">
-        <StatusBadge status={check.verdict} className="px-2 py-1 text-sm uppercase tracking-wide" />
+        <StatusBadge status={check.verdict} className="px-2 py-1 text-sm" />
         <p className="text-sm">{VERDICT_WORDS[check.verdict]}</p>
       </div>
       {check.summary.length ? (
@@ -34,7 +34,7 @@ export function BenchCheckCard({ check, highlight = false, bare = false, canUplo
       ) : null}
       <div className="overflow-x-auto">
         <table className="w-full min-w-[640px] text-sm" data-testid="bench-comparisons">
-          <thead className="border-b border-rule text-left text-xs uppercase tracking-wide text-muted">
+          <thead className="border-b border-rule text-left text-xs text-muted">
             <tr>
               <th className="py-1.5 pr-2 font-medium">Quantity</th>
               <th className="py-1.5 pr-2 text-right font-medium">Bench</th>

@@ -163,7 +163,7 @@ function DesignCard({ ctx }: { ctx: BenchContext }) {
           </p>
         ) : null}
         <table className="w-full text-sm" data-testid="bench-expected">
-          <thead className="text-left text-xs uppercase tracking-wide text-muted">
+          <thead className="text-left text-xs text-muted">
             <tr>
               <th className="pb-1 font-medium">Design value</th>
               <th className="pb-1 text-right font-medium">Expected</th>

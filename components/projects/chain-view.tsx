@@ -189,7 +189,7 @@ function SupplyResult({ c, project }: { c: ChainResult; project: ProjectDetail }
             </p>
             <div className="overflow-x-auto rounded-md border border-rule">
               <table className="w-full text-sm" data-testid="supply-nodes">
-                <thead className="border-b border-rule text-left text-xs uppercase tracking-wide text-muted">
+                <thead className="border-b border-rule text-left text-xs text-muted">
                   <tr>
                     <th className="px-2.5 py-1.5 font-medium">Node</th>
                     <th className="px-2.5 py-1.5 text-right font-medium">Dropping R</th>

@@ -126,7 +126,7 @@ function StagesTable({ project }: { project: ProjectDetail }) {
   return (
     <div className="overflow-x-auto">
       <table className="w-full text-sm" data-testid="stages-table">
-        <thead className="border-b border-rule text-left text-xs uppercase tracking-wide text-muted">
+        <thead className="border-b border-rule text-left text-xs text-muted">
           <tr>
             <th className="px-3 py-2 font-medium">#</th>
             <th className="px-3 py-2 font-medium">Stage</th>

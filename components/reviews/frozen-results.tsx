@@ -21,7 +21,7 @@ export function FrozenResults({ snapshot }: { snapshot: RevisionSnapshot }) {
               </p>
             ) : null}
             <details className="rounded-md border border-rule px-3 py-1.5 text-sm">
-              <summary className="cursor-pointer text-xs font-semibold uppercase tracking-wide text-muted">Inputs</summary>
+              <summary className="cursor-pointer text-xs font-semibold text-muted">Inputs</summary>
               <table className="mt-1 w-full">
                 <tbody className="divide-y divide-rule">
                   {stageInputRows(s).map((r) => (

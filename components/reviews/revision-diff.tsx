@@ -34,7 +34,7 @@ function Rows({ changes, showSame }: { changes: ValueChange[]; showSame: boolean
 
 function Head({ base, number, after }: { base: string; number: number; after?: string }) {
   return (
-    <thead className="border-b border-rule text-left text-xs uppercase tracking-wide text-muted">
+    <thead className="border-b border-rule text-left text-xs text-muted">
       <tr>
         <th className="py-1.5 pr-3 font-medium">Quantity</th>
         <th className="py-1.5 pr-3 text-right font-medium">{base}</th>
@@ -64,7 +64,7 @@ function StageBlock({ s, base, number, after }: { s: StageDiff; base: string; nu
               <>
                 <tbody>
                   <tr>
-                    <td colSpan={4} className="pt-2 text-xs font-semibold uppercase tracking-wide text-muted">Inputs changed</td>
+                    <td colSpan={4} className="pt-2 text-xs font-semibold text-muted">Inputs changed</td>
                   </tr>
                 </tbody>
                 <Rows changes={s.inputs} showSame={false} />
@@ -72,7 +72,7 @@ function StageBlock({ s, base, number, after }: { s: StageDiff; base: string; nu
             ) : null}
             <tbody>
               <tr>
-                <td colSpan={4} className="pt-3 text-xs font-semibold uppercase tracking-wide text-muted">Results</td>
+                <td colSpan={4} className="pt-3 text-xs font-semibold text-muted">Results</td>
               </tr>
             </tbody>
             <Rows changes={s.results} showSame />

@@ -28,7 +28,7 @@ export function AppNav({ items }: { items: NavItem[] }) {
       {admin.length ? (
         <>
           <span aria-hidden className="mx-1.5 h-4 w-px bg-rule" />
-          <span className="mr-0.5 text-[11px] font-semibold uppercase tracking-wider text-muted">Admin</span>
+          <span className="mr-0.5 text-[11px] font-semibold text-muted">Admin</span>
           {admin.map(link)}
         </>
       ) : null}

@@ -23,7 +23,7 @@ export function UserMenu({ name, role }: { name: string; role: string }) {
       <ThemeToggle />
       <div className="text-right leading-tight">
         <div className="text-sm font-medium" data-testid="user-name">{name}</div>
-        <div className="text-[11px] uppercase tracking-wider text-muted" data-testid="user-role">{role}</div>
+        <div className="text-[11px] text-muted" data-testid="user-role">{role}</div>
       </div>
       <Button variant="secondary" size="sm" onClick={() => signOut({ callbackUrl: '/sign-in' })}>
         Sign out

@@ -27,7 +27,7 @@ function Row({ label, value, testId, title }: { label: string; value: React.Reac
 function Section({ title, children }: { title: string; children: React.ReactNode }) {
   return (
     <section className="border-t border-rule px-4 py-3 first:border-t-0">
-      <h3 className="mb-1 text-[11px] font-semibold uppercase tracking-wider text-muted">{title}</h3>
+      <h3 className="mb-1 text-[11px] font-semibold text-muted">{title}</h3>
       <dl className="divide-y divide-rule/60">{children}</dl>
     </section>
   );
@@ -74,7 +74,7 @@ export function ResultsPanel({ analysis, stale }: { analysis: StageAnalysis; sta
       </Section>
       {analysis.warnings.length ? (
         <section className="border-t border-rule px-4 py-3">
-          <h3 className="mb-1 text-[11px] font-semibold uppercase tracking-wider text-muted">Notes from the calculation</h3>
+          <h3 className="mb-1 text-[11px] font-semibold text-muted">Notes from the calculation</h3>
           <ul className="list-disc space-y-1 pl-4 text-xs">
             {analysis.warnings.map((w) => (
               <li key={w}>{w}</li>

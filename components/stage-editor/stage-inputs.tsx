@@ -17,7 +17,7 @@ type Path = Parameters<UseFormReturn<StageFormValues>['register']>[0];
 function Group({ title, children, className }: { title: string; children: React.ReactNode; className?: string }) {
   return (
     <fieldset className={cn('space-y-3 border-t border-rule px-4 py-3 first:border-t-0', className)}>
-      <legend className="float-left mb-1 w-full text-[11px] font-semibold uppercase tracking-wider text-muted">{title}</legend>
+      <legend className="float-left mb-1 w-full text-[11px] font-semibold text-muted">{title}</legend>
       <div className="clear-both grid grid-cols-2 gap-x-3 gap-y-3">{children}</div>
     </fieldset>
   );

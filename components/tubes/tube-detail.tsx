@@ -253,13 +253,13 @@ function RatingsCard({ tube }: { tube: TubeDetail }) {
           </dl>
         )}
         <div className="text-sm">
-          <h3 className="text-xs font-medium uppercase tracking-wide text-muted">Heater</h3>
+          <h3 className="text-xs font-medium text-muted">Heater</h3>
           <p className="num">{heaterText(tube.heater)}</p>
           {tube.heater.source ? <p className="text-xs text-muted">{tube.heater.source}</p> : null}
         </div>
         {caps.cgk !== undefined || caps.cga !== undefined || caps.cak !== undefined ? (
           <div className="text-sm">
-            <h3 className="text-xs font-medium uppercase tracking-wide text-muted">Interelectrode capacitances</h3>
+            <h3 className="text-xs font-medium text-muted">Interelectrode capacitances</h3>
             <p className="num">
               Cgk {formatMaybe(caps.cgk, 'F')} · Cga {formatMaybe(caps.cga, 'F')} · Cak {formatMaybe(caps.cak, 'F')}
             </p>
@@ -268,7 +268,7 @@ function RatingsCard({ tube }: { tube: TubeDetail }) {
         ) : null}
         {tube.typicalPoints.length ? (
           <div className="text-sm">
-            <h3 className="text-xs font-medium uppercase tracking-wide text-muted">Typical operation</h3>
+            <h3 className="text-xs font-medium text-muted">Typical operation</h3>
             <ul className="space-y-1.5">
               {tube.typicalPoints.map((p) => (
                 <li key={p.label}>

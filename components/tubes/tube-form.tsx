@@ -115,7 +115,7 @@ export function TubeForm({ tube }: { tube?: TubeDetail }) {
               <Input id="tube-sections" type="number" min={1} max={4} {...form.register('sections')} />
             </Field>
           </div>
-          <h3 className="pt-2 text-xs font-medium uppercase tracking-wide text-muted">Heater</h3>
+          <h3 className="pt-2 text-xs font-medium text-muted">Heater</h3>
           <div className="grid grid-cols-3 gap-3">
             <Field label="Voltage" htmlFor="heater-voltage" unit="V" error={fieldError('heater.voltage')}>
               <Input id="heater-voltage" className="num" {...form.register('heater.voltage' as never)} />
@@ -130,7 +130,7 @@ export function TubeForm({ tube }: { tube?: TubeDetail }) {
           <Field label="Heater source" htmlFor="heater-source" error={fieldError('heater.source')}>
             <Input id="heater-source" {...form.register('heater.source')} />
           </Field>
-          <h3 className="pt-2 text-xs font-medium uppercase tracking-wide text-muted">Interelectrode capacitances</h3>
+          <h3 className="pt-2 text-xs font-medium text-muted">Interelectrode capacitances</h3>
           <div className="grid grid-cols-3 gap-3">
             {(['cgk', 'cga', 'cak'] as const).map((k) => (
               <Field key={k} label={k === 'cgk' ? 'Cgk' : k === 'cga' ? 'Cga' : 'Cak'} htmlFor={`cap-${k}`} unit="F" error={fieldError(`capacitances.${k}`)}>

@@ -34,7 +34,7 @@ export function DataTable<T>({ data, columns, filterPlaceholder = 'Filter…', i
       </div>
       <div className="overflow-x-auto rounded-lg border border-rule bg-sheet">
         <table className="w-full text-sm" data-testid={testId}>
-          <thead className="border-b border-rule text-left text-xs uppercase tracking-wide text-muted">
+          <thead className="border-b border-rule text-left text-xs text-muted">
             {table.getHeaderGroups().map((hg) => (
               <tr key={hg.id}>
                 {hg.headers.map((h) => {
@@ -42,7 +42,7 @@ export function DataTable<T>({ data, columns, filterPlaceholder = 'Filter…', i
                   return (
                     <th key={h.id} className="px-3 py-2 font-medium" aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}>
                       {h.isPlaceholder ? null : h.column.getCanSort() ? (
-                        <button type="button" className="inline-flex items-center gap-1 uppercase hover:text-ink" onClick={h.column.getToggleSortingHandler()}>
+                        <button type="button" className="inline-flex items-center gap-1 hover:text-ink" onClick={h.column.getToggleSortingHandler()}>
                           {flexRender(h.column.columnDef.header, h.getContext())}
                           <span aria-hidden>{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}</span>
                         </button>

@@ -14,7 +14,7 @@ function Table({ rows, meId, decided }: { rows: RevisionSummary[]; meId: number;
   return (
     <div className="overflow-x-auto">
       <table className="w-full text-sm" data-testid={decided ? 'past-decisions' : 'open-revisions'}>
-        <thead className="border-b border-rule text-left text-xs uppercase tracking-wide text-muted">
+        <thead className="border-b border-rule text-left text-xs text-muted">
           <tr>
             <th className="px-3 py-2 font-medium">Project</th>
             <th className="px-3 py-2 font-medium">Revision</th>

@@ -37,7 +37,7 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
       </form>
       <Card className="overflow-x-auto">
         <table className="w-full text-sm" data-testid="audit-table">
-          <thead className="border-b border-rule text-left text-xs uppercase tracking-wide text-muted">
+          <thead className="border-b border-rule text-left text-xs text-muted">
             <tr><th className="px-3 py-2">When</th><th className="px-3 py-2">Who</th><th className="px-3 py-2">Action</th><th className="px-3 py-2">Target</th><th className="px-3 py-2">Project</th><th className="px-3 py-2">Details</th></tr>
           </thead>
           <tbody className="divide-y divide-rule">

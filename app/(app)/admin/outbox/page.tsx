@@ -18,7 +18,7 @@ export default async function OutboxPage() {
         <CardHeader title={`Queued and sent mail (${mails.length})`} />
         <div className="overflow-x-auto">
           <table className="w-full text-sm" data-testid="outbox-table">
-            <thead className="border-b border-rule text-left text-xs uppercase tracking-wide text-muted">
+            <thead className="border-b border-rule text-left text-xs text-muted">
               <tr><th className="px-3 py-2">Status</th><th className="px-3 py-2">To</th><th className="px-3 py-2">Subject</th><th className="px-3 py-2">Attachments</th><th className="px-3 py-2">Attempts</th><th className="px-3 py-2">Queued</th><th className="px-3 py-2">Sent / next try</th></tr>
             </thead>
             <tbody className="divide-y divide-rule">
