@@ -1,6 +1,6 @@
 /** @type {import('next').NextConfig} */
 const nextConfig = {
-  serverExternalPackages: ['sequelize', 'pg', 'pg-hstore', '@react-pdf/renderer', 'nodemailer', 'bcryptjs'],
+  serverExternalPackages: ['sequelize', 'pg', 'pg-hstore', '@react-pdf/renderer', 'nodemailer', 'bcryptjs', 'pg-boss', 'piscina'],
   poweredByHeader: false,
   typedRoutes: false,
   // Static files too (proxy.ts sets these and the per-request CSP on pages and API answers).

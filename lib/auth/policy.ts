@@ -17,6 +17,8 @@ export const PERMISSIONS = {
   'bench:write': ['admin', 'technician'],
   'revisions:submit': ['admin', 'designer'],
   'revisions:decide': ['admin', 'reviewer'],
+  'explore:read': ['admin', 'designer', 'technician', 'reviewer'],
+  'explore:run': ['admin', 'designer'],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Permission = keyof typeof PERMISSIONS;

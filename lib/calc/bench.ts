@@ -4,16 +4,19 @@
 import type { OperatingPoint, RatingCheck } from './types';
 
 export type BenchVerdict = 'pass' | 'check' | 'fail';
-export type BenchQuantity =
-  | 'supplyVoltage'
-  | 'plateVoltage'
-  | 'cathodeVoltage'
-  | 'screenVoltage'
-  | 'heaterVoltage'
-  | 'plateCurrent'
-  | 'plateCathodeVoltage'
-  | 'plateDissipation'
-  | 'screenDissipation';
+/** Every quantity a bench check compares with the design; project tolerances are keyed by these (lib/validation imports them). */
+export const BENCH_QUANTITY_KEYS = [
+  'supplyVoltage',
+  'plateVoltage',
+  'cathodeVoltage',
+  'screenVoltage',
+  'heaterVoltage',
+  'plateCurrent',
+  'plateCathodeVoltage',
+  'plateDissipation',
+  'screenDissipation',
+] as const;
+export type BenchQuantity = (typeof BENCH_QUANTITY_KEYS)[number];
 
 export const BENCH_QUANTITIES: { key: BenchQuantity; label: string; unit: 'V' | 'A' | 'W' }[] = [
   { key: 'supplyVoltage', label: 'Supply (B+)', unit: 'V' },

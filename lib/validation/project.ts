@@ -4,6 +4,7 @@ import { idNumber, idText, intCounter } from './ids';
 import { quantity } from './quantity';
 import { stageBodySchema } from './stage';
 import { CURVE_KINDS } from '@/lib/report/curve-kinds';
+import { BENCH_QUANTITY_KEYS, type BenchQuantity } from '@/lib/calc/bench';
 
 export const PROJECT_STATUSES = ['draft', 'in-review', 'approved', 'changes-requested'] as const;
 export type ProjectStatus = (typeof PROJECT_STATUSES)[number];
@@ -67,8 +68,9 @@ export const createProjectSchema = z.object({
 export type CreateProjectInput = z.input<typeof createProjectSchema>;
 
 /** The quantities a bench check compares (the keys of lib/calc/bench's BENCH_QUANTITIES; validation imports only zod). */
-export const BENCH_TOLERANCE_KEYS = ['supplyVoltage', 'plateVoltage', 'cathodeVoltage', 'screenVoltage', 'heaterVoltage', 'plateCurrent', 'plateCathodeVoltage', 'plateDissipation', 'screenDissipation'] as const;
-export type BenchToleranceKey = (typeof BENCH_TOLERANCE_KEYS)[number];
+/** The bench check's own list of compared quantities (lib/calc/bench.ts). */
+export const BENCH_TOLERANCE_KEYS = BENCH_QUANTITY_KEYS;
+export type BenchToleranceKey = BenchQuantity;
 
 /** Per-project bench tolerances as fractions (0.05 = ±5 %); a quantity left out uses the ±10 % default. The settings card enters percent. */
 export const benchTolerancesSchema = z.partialRecord(

@@ -5,6 +5,7 @@ import { text } from './text';
 import { acceptFitSchema } from './curve-set';
 import { idNumber, idText } from './ids';
 import { quantity } from './quantity';
+import { tubeRatingsSchema } from '../calc/input';
 
 export const TUBE_FAMILIES = ['triode', 'pentode', 'beam-tetrode'] as const;
 export type TubeFamily = (typeof TUBE_FAMILIES)[number];
@@ -26,16 +27,8 @@ const optionalText = (max: number) =>
 
 const sourced = (unit: string) => z.object({ value: quantity(unit, { positive: true }), source: sourceSchema });
 
-export const RATING_KEYS = [
-  'plateVoltage',
-  'plateDissipation',
-  'screenVoltage',
-  'screenDissipation',
-  'cathodeCurrent',
-  'heaterCathodeVoltage',
-  'gridResistanceFixedBias',
-  'gridResistanceCathodeBias',
-] as const;
+/** The ratings the engine checks, in its order: the keys of its own tube-ratings schema (lib/calc/input.ts). */
+export const RATING_KEYS = Object.keys(tubeRatingsSchema.shape) as (keyof typeof tubeRatingsSchema.shape)[];
 export type RatingKey = (typeof RATING_KEYS)[number];
 
 export const RATING_META: Record<RatingKey, { label: string; short: string; unit: string }> = {
