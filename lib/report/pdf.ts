@@ -7,7 +7,7 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { errorResponse } from '@/lib/api/errors';
 import type { ProjectDetail } from '@/lib/projects/service';
-import { MAX_STAGES_PER_PROJECT } from '@/lib/stages/limits';
+import { MAX_REPORT_STAGES } from './limits';
 import type { PdfAnswer, PdfJob } from './pdf-worker';
 import type { ReportOptions } from './project-report';
 
@@ -73,8 +73,8 @@ class PdfPool {
   private nextId = 1;
 
   async render(project: ProjectDetail, opts: ReportOptions): Promise<Buffer> {
-    if (project.stages.length > MAX_STAGES_PER_PROJECT) {
-      throw new ReportError('report_too_large', `A report covers at most ${MAX_STAGES_PER_PROJECT} stages; this project has ${project.stages.length}.`);
+    if (project.stages.length > MAX_REPORT_STAGES) {
+      throw new ReportError('report_too_large', `A report covers at most ${MAX_REPORT_STAGES} stages; this project has ${project.stages.length}.`);
     }
     if (this.queue.length >= MAX_QUEUE) {
       throw new ReportError('report_busy', 'Too many reports are being drawn right now. Try again in a minute.');
