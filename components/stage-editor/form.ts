@@ -110,9 +110,11 @@ const BASE: StageFormValues = {
 const TOPOLOGY_DEFAULTS: Record<Topology, (v: StageFormValues) => StageFormValues> = {
   'common-cathode': (v) => ({ ...v, plateResistor: '100k', bias: { ...v.bias, kind: 'cathode', cathodeResistor: '1k5', cathodeBypass: '22u' }, load: { ...v.load, enabled: true }, drive: { ...v.drive, amplitude: '0.5' } }),
   'cathode-follower': (v) => ({ ...v, plateResistor: '0', cathodeResistor: '22k', bias: { ...v.bias, kind: 'self', biasResistor: '1k' }, load: { ...v.load, enabled: true }, drive: { ...v.drive, amplitude: '1' } }),
-  'pentode-amplifier': (v) => ({ ...v, plateResistor: '220k', bias: { ...v.bias, kind: 'cathode', cathodeResistor: '2k2', cathodeBypass: '22u' }, screen: { ...v.screen, kind: 'resistor', resistor: '1M', bypass: '100n' }, load: { ...v.load, enabled: true }, drive: { ...v.drive, amplitude: '0.1' } }),
-  'single-ended-output': (v) => ({ ...v, supply: '300', primaryImpedance: '5k', primaryResistance: '150', bias: { ...v.bias, kind: 'cathode', cathodeResistor: '250', cathodeBypass: '100u' }, screen: { ...v.screen, kind: 'fixed', supply: '280' }, load: { ...v.load, enabled: false }, drive: { ...v.drive, amplitude: '5' } }),
-  'push-pull-output': (v) => ({ ...v, supply: '400', plateToPlateImpedance: '6k6', primaryResistance: '200', class: 'AB', bias: { ...v.bias, kind: 'fixed', fixedBias: '-38' }, screen: { ...v.screen, kind: 'fixed', supply: '380' }, load: { ...v.load, enabled: false }, drive: { ...v.drive, amplitude: '10' } }),
+  // sized for the library's pentodes (power types used as voltage amplifiers): plate near 110 V at about 8 mA
+  'pentode-amplifier': (v) => ({ ...v, supply: '300', gridResistor: '470k', plateResistor: '22k', bias: { ...v.bias, kind: 'cathode', cathodeResistor: '1k', cathodeBypass: '22u' }, screen: { ...v.screen, kind: 'resistor', resistor: '1M', bypass: '100n' }, load: { ...v.load, enabled: true }, drive: { ...v.drive, amplitude: '0.5' } }),
+  // output stages start with a grid resistor within the usual output-tube limits (cathode bias ≤ 470 kΩ, fixed ≤ 100 kΩ)
+  'single-ended-output': (v) => ({ ...v, supply: '300', gridResistor: '220k', primaryImpedance: '5k', primaryResistance: '150', bias: { ...v.bias, kind: 'cathode', cathodeResistor: '300', cathodeBypass: '100u' }, screen: { ...v.screen, kind: 'fixed', supply: '280' }, load: { ...v.load, enabled: false }, drive: { ...v.drive, amplitude: '5' } }),
+  'push-pull-output': (v) => ({ ...v, supply: '400', gridResistor: '100k', plateToPlateImpedance: '6k6', primaryResistance: '200', class: 'AB', bias: { ...v.bias, kind: 'fixed', fixedBias: '-38' }, screen: { ...v.screen, kind: 'fixed', supply: '380' }, load: { ...v.load, enabled: false }, drive: { ...v.drive, amplitude: '10' } }),
 };
 
 export function newStageDefaults(topology: Topology = 'common-cathode', patch: Partial<StageFormValues> = {}): StageFormValues {

@@ -421,16 +421,18 @@ export async function getEngineTube(tubeTypeId: number, modelId?: number): Promi
   return engineTubeFrom(tube, model);
 }
 
-export type TubeOption = { id: number; designation: string; family: Family; models: { id: number; name: string; kind: ModelRow['kind']; isDefault: boolean }[] };
+/** `rated`: the type has a plate dissipation rating on file, so a stage built on it can be checked. */
+export type TubeOption = { id: number; designation: string; family: Family; rated: boolean; models: { id: number; name: string; kind: ModelRow['kind']; isDefault: boolean }[] };
 
 /** For tube selects: every non-retired type with its models, the default first. */
 export async function listTubeOptions(): Promise<TubeOption[]> {
-  const tubes = await TubeType.findAll({ where: { retired: false }, order: [['designation', 'ASC']], attributes: ['id', 'designation', 'family'] });
+  const tubes = await TubeType.findAll({ where: { retired: false }, order: [['designation', 'ASC']], attributes: ['id', 'designation', 'family', 'ratings'] });
   const models = await TubeModel.findAll({ where: { tubeTypeId: { [Op.in]: tubes.map((t) => t.id) } }, order: [['isDefault', 'DESC'], ['id', 'ASC']], attributes: ['id', 'tubeTypeId', 'name', 'kind', 'isDefault'] });
   return tubes.map((t) => ({
     id: t.id,
     designation: t.designation,
     family: t.family,
+    rated: typeof t.ratings?.plateDissipation?.value === 'number',
     models: models.filter((m) => m.tubeTypeId === t.id).map((m) => ({ id: m.id, name: m.name, kind: m.kind, isDefault: m.isDefault })),
   }));
 }
