@@ -33,7 +33,9 @@ fi
 
 if [ ! -d node_modules ] || [ package-lock.json -nt node_modules/.package-lock.json ]; then
   log "installing npm packages (npm ci)"
-  npm ci --no-audit --no-fund --loglevel=error
+  # --include=dev: the local SMTP sink and S3 fake that start and test run are development dependencies,
+  # and a NODE_ENV=production in the caller's environment must not leave them out.
+  npm ci --include=dev --no-audit --no-fund --loglevel=error
 fi
 
 if [ -z "${DATABASE_URL:-}" ]; then
