@@ -1,5 +1,5 @@
 import 'server-only';
-import { Op, QueryTypes } from 'sequelize';
+import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { ApiError } from '@/lib/api/errors';
 import type { ChainStage } from '@/lib/calc/chain';
 import { stageBodySchema, type StageBody } from '@/lib/validation/stage';
@@ -106,15 +106,16 @@ export async function listWatcherOptions(): Promise<WatcherOption[]> {
   return users.map((u) => ({ id: u.id, displayName: u.displayName, role: u.role }));
 }
 
-export async function getProject(id: number): Promise<ProjectDetail> {
-  const project = await Project.findByPk(id);
+/** Inside a transaction, pass it (one connection per request). */
+export async function getProject(id: number, transaction?: Transaction): Promise<ProjectDetail> {
+  const project = await Project.findByPk(id, { transaction });
   if (!project) throw new ApiError('not_found', 'No such project.');
   const [owner, stages, watchers] = await Promise.all([
-    project.ownerId !== null ? User.findByPk(project.ownerId, { attributes: ['id', 'displayName'] }) : null,
-    Stage.findAll({ where: { projectId: id }, order: [['position', 'ASC'], ['id', 'ASC']] }),
-    ProjectWatcher.findAll({ where: { projectId: id } }),
+    project.ownerId !== null ? User.findByPk(project.ownerId, { attributes: ['id', 'displayName'], transaction }) : null,
+    Stage.findAll({ where: { projectId: id }, order: [['position', 'ASC'], ['id', 'ASC']], transaction }),
+    ProjectWatcher.findAll({ where: { projectId: id }, transaction }),
   ]);
-  const watcherUsers = watchers.length ? await User.findAll({ where: { id: { [Op.in]: watchers.map((w) => w.userId) } }, attributes: ['id', 'displayName'], order: [['displayName', 'ASC']] }) : [];
+  const watcherUsers = watchers.length ? await User.findAll({ where: { id: { [Op.in]: watchers.map((w) => w.userId) } }, attributes: ['id', 'displayName'], order: [['displayName', 'ASC']], transaction }) : [];
   return {
     id: project.id,
     name: project.name,
@@ -127,7 +128,7 @@ export async function getProject(id: number): Promise<ProjectDetail> {
     supply: project.supply ?? {},
     benchTolerances: project.benchTolerances ?? {},
     updatedAt: project.updatedAt.toISOString(),
-    stages: await stageDTOs(stages),
+    stages: await stageDTOs(stages, transaction),
   };
 }
 
@@ -153,7 +154,7 @@ export async function updateProject(actorId: number, id: number, raw: UpdateProj
     if (!project) throw new ApiError('not_found', 'No such project.');
     if (project.version !== patch.version) {
       throw new ApiError('conflict', `Someone else changed this project since you opened it (now version ${project.version}). Reload to see their changes.`, {
-        details: { current: await getProject(id) },
+        details: { current: await getProject(id, transaction) },
       });
     }
     if (project.archived && patch.archived !== false && DESIGN_FIELDS.some((f) => patch[f] !== undefined)) {

@@ -182,7 +182,7 @@ export async function submitRevision(actor: CurrentUser, projectId: number, raw:
     if (project.archived) throw new ApiError('conflict', 'This project is archived; restore it before submitting it for review.');
     const open = await Revision.findOne({ where: { projectId, state: 'submitted' }, transaction });
     if (open) throw new ApiError('conflict', `Revision ${open.number} of this project is still waiting for a decision.`, { details: { revisionId: open.id } });
-    const detail = await getProject(projectId);
+    const detail = await getProject(projectId, transaction);
     if (detail.stages.length === 0) throw new ApiError('conflict', 'Add at least one stage before submitting the project for review.');
     const { watchers: _w, ...rest } = detail as typeof detail & { watchers?: unknown };
     const snapshot = toPlainJson({ ...rest, status: 'in-review' }) as unknown as RevisionSnapshot;

@@ -49,14 +49,15 @@ export function toStageDTO(s: Stage, designation: string): StageDTO {
   };
 }
 
-async function designations(ids: number[]): Promise<Map<number, string>> {
+async function designations(ids: number[], transaction?: Transaction): Promise<Map<number, string>> {
   if (ids.length === 0) return new Map();
-  const rows = await TubeType.findAll({ where: { id: [...new Set(ids)] }, attributes: ['id', 'designation'] });
+  const rows = await TubeType.findAll({ where: { id: [...new Set(ids)] }, attributes: ['id', 'designation'], transaction });
   return new Map(rows.map((t) => [t.id, t.designation]));
 }
 
-export async function stageDTOs(stages: Stage[]): Promise<StageDTO[]> {
-  const names = await designations(stages.map((s) => s.tubeTypeId));
+/** Inside a transaction, pass it: a request never waits for a second pooled connection while holding one. */
+export async function stageDTOs(stages: Stage[], transaction?: Transaction): Promise<StageDTO[]> {
+  const names = await designations(stages.map((s) => s.tubeTypeId), transaction);
   return stages.map((s) => toStageDTO(s, names.get(s.tubeTypeId) ?? '?'));
 }
 
@@ -72,10 +73,10 @@ const TOPOLOGY_WORDS: Record<string, string> = {
  * The engine input of a stage body: the library tube (default model unless one is chosen) in place of tubeId.
  * A tube that is unknown, has no model, or does not suit the topology is a 422 on `tubeId`.
  */
-export async function engineInputFor(body: StageBody, tubeModelId?: number | null): Promise<StageInput> {
+export async function engineInputFor(body: StageBody, tubeModelId?: number | null, transaction?: Transaction): Promise<StageInput> {
   let tube;
   try {
-    tube = await getEngineTube(body.tubeId, tubeModelId ?? undefined);
+    tube = await getEngineTube(body.tubeId, tubeModelId ?? undefined, transaction);
   } catch (err) {
     if (err instanceof ApiError && (err.code === 'not_found' || err.code === 'unprocessable_entity')) {
       const field = err.message.includes('Model') && tubeModelId ? 'tubeModelId' : 'tubeId';
@@ -209,7 +210,7 @@ export async function updateStage(actorId: number, id: number, raw: UpdateStageI
   const updated = await sequelize.transaction(async (transaction) => {
     const stage = await Stage.findByPk(id, { transaction, lock: transaction.LOCK.UPDATE });
     if (!stage) throw new ApiError('not_found', 'No such stage.');
-    if (stage.version !== patch.version) throw staleStage((await stageDTOs([stage]))[0]!);
+    if (stage.version !== patch.version) throw staleStage((await stageDTOs([stage], transaction))[0]!);
     await lockProject(transaction, stage.projectId);
 
     // Only real changes are saved and audited: a save with nothing different keeps the version and writes no row,
@@ -236,7 +237,7 @@ export async function updateStage(actorId: number, id: number, raw: UpdateStageI
     }
     if (changes.inputs || tubeModelId !== stage.tubeModelId) {
       changes.tubeModelId = tubeModelId;
-      const result = analyseForStorage(await engineInputFor(body, tubeModelId));
+      const result = analyseForStorage(await engineInputFor(body, tubeModelId, transaction));
       changes.analysis = result.analysis as unknown as Record<string, unknown> | null;
       changes.analysisError = result.analysisError;
     }
@@ -274,7 +275,7 @@ export async function deleteStage(actorId: number, id: number, version: number):
   await sequelize.transaction(async (transaction) => {
     const stage = await Stage.findByPk(id, { transaction, lock: transaction.LOCK.UPDATE });
     if (!stage) throw new ApiError('not_found', 'No such stage.');
-    if (stage.version !== version) throw staleStage((await stageDTOs([stage]))[0]!);
+    if (stage.version !== version) throw staleStage((await stageDTOs([stage], transaction))[0]!);
     await lockProject(transaction, stage.projectId);
     await stage.destroy({ transaction });
     await renumber(transaction, stage.projectId);

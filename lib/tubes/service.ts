@@ -406,12 +406,12 @@ export async function getModel(tubeTypeId: number, modelId: number) {
  */
 export { engineTubeFrom };
 
-export async function getEngineTube(tubeTypeId: number, modelId?: number): Promise<Tube> {
-  const tube = await TubeType.findByPk(tubeTypeId);
+export async function getEngineTube(tubeTypeId: number, modelId?: number, transaction?: Transaction): Promise<Tube> {
+  const tube = await TubeType.findByPk(tubeTypeId, { transaction });
   if (!tube) throw new ApiError('not_found', 'No such tube type.');
   const model = modelId
-    ? await TubeModel.findOne({ where: { id: modelId, tubeTypeId } })
-    : await TubeModel.findOne({ where: { tubeTypeId }, order: [['isDefault', 'DESC'], ['id', 'ASC']] });
+    ? await TubeModel.findOne({ where: { id: modelId, tubeTypeId }, transaction })
+    : await TubeModel.findOne({ where: { tubeTypeId }, order: [['isDefault', 'DESC'], ['id', 'ASC']], transaction });
   if (!model) {
     if (modelId) throw new ApiError('not_found', `Model ${modelId} does not belong to ${tube.designation}.`);
     throw new ApiError('unprocessable_entity', `${tube.designation} has no model yet (ratings only); upload measured curves and fit one, or enter parameters by hand.`, {

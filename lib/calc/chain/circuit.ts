@@ -16,6 +16,12 @@ export type Inductor = { name: string; a: string; b: string; l: number };
 export type Winding = { name: string; n1: string; p1: string; n2: string; p2: string; k: number };
 export type TubeElement = {
   name: string;
+/**
+ * Ideal two-winding transformer (no magnetising current, no leakage): v(p1)−v(p2) = ratio·(v(s1)−v(s2)) and
+ * ampere-turns balance, so the current into s1 is −ratio times the current into p1. Real transformers are built
+ * around it from R, L and C (lib/calc/feedback/output-transformer.ts).
+ */
+export type IdealTransformer = { name: string; p1: string; p2: string; s1: string; s2: string; ratio: number };
   tube: Tube;
   model: TubeModel;
   plate: string;
@@ -37,6 +43,7 @@ export class Circuit {
   tubes: TubeElement[] = [];
   fixed: FixedNode[] = [];
   private parent = new Map<string, string>();
+  transformers: IdealTransformer[] = [];
 
   find(name: string): string {
     let n = name;
@@ -75,6 +82,9 @@ export class Circuit {
   addTube(name: string, stage: string, tube: Tube, plate: string, grid: string, cathode: string, screen: string | null): void {
     this.tubes.push({ name, stage, tube, model: tubeModel(tube), plate, grid, cathode, screen });
     // interelectrode capacitances, as in the SPICE subcircuit (Miller loading comes from these)
+  idealTransformer(name: string, p1: string, p2: string, s1: string, s2: string, ratio: number): void {
+    this.transformers.push({ name, p1, p2, s1, s2, ratio });
+  }
     const caps = tube.capacitances;
     if (caps) {
       this.capacitor(`CGK_${name}`, grid, cathode, caps.cgk);

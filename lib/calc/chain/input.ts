@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { stageInputSchema, type StageInput } from '../input';
 import { quantity } from '../../validation/quantity';
+import { feedbackSchema } from '../feedback/circuit';
 
 /** A volume control: a potentiometer from the signal to ground, the wiper feeding the next element. */
 export const volumeControlSchema = z.object({
@@ -79,6 +80,8 @@ export const chainInputSchema = z
     stages: z.array(chainStageSchema).min(1).max(12),
     /** omitted: capacitor coupling (100 nF) between consecutive elements */
     links: z.array(chainLinkSchema).max(40).optional(),
+    /** global negative feedback from an output stage's speaker terminal to an earlier stage's cathode */
+    feedback: feedbackSchema.optional(),
   })
   .superRefine((chain, ctx) => {
     const ids = new Set<string>();
@@ -91,6 +94,14 @@ export const chainInputSchema = z
       if (!ids.has(l.to)) ctx.addIssue({ code: 'custom', path: ['links', i, 'to'], message: `no element with id '${l.to}'` });
       if (l.from === l.to) ctx.addIssue({ code: 'custom', path: ['links', i, 'to'], message: 'a link cannot return to its own element' });
     });
+    const fb = chain.feedback;
+    if (fb) {
+      if (!ids.has(fb.from)) ctx.addIssue({ code: 'custom', path: ['feedback', 'from'], message: `no element with id '${fb.from}'` });
+      if (!ids.has(fb.to)) ctx.addIssue({ code: 'custom', path: ['feedback', 'to'], message: `no element with id '${fb.to}'` });
+      if (fb.dominantPole && !ids.has(fb.dominantPole.stage)) {
+        ctx.addIssue({ code: 'custom', path: ['feedback', 'dominantPole', 'stage'], message: `no element with id '${fb.dominantPole.stage}'` });
+      }
+    }
   });
 
 export type ChainElement = { id: string } & (StageInput | PassiveInput);

@@ -38,6 +38,8 @@ export type Compiled = {
   inds: { a: Term; b: Term; l: number }[];
   wind: { n1: Term; p1: Term; n2: Term; p2: Term; k: number; row: number }[];
   tubes: { p: Term; g: Term; k: Term; s: Term; model: TubeModel; pentode: boolean }[];
+  /** ideal transformers: one primary-current unknown each, after the winding currents */
+  xfmr: { p1: Term; p2: Term; s1: Term; s2: Term; ratio: number; row: number }[];
 };
 
 export function compile(circuit: Circuit): Compiled {
@@ -84,9 +86,14 @@ export function compile(circuit: Circuit): Compiled {
   const windTerms = circuit.windings.map((w) => ({ n1: index(w.n1), p1: index(w.p1), n2: index(w.n2), p2: index(w.p2), k: w.k }));
   const nodes = names.length;
   const wind = windTerms.map((w, i) => ({ ...w, row: nodes + 2 * i }));
+  const xfmr = circuit.transformers.map((t) => ({ p1: index(t.p1), p2: index(t.p2), s1: index(t.s1), s2: index(t.s2), ratio: t.ratio, row: 0 }));
   for (const w of wind) names.push(`i(${w.row})`, `i(${w.row + 1})`);
   return {
     circuit,
+  for (const t of xfmr) {
+    t.row = names.length;
+    names.push(`i(${t.row})`);
+  }
     names,
     nodes,
     size: names.length,
@@ -100,6 +107,7 @@ export function compile(circuit: Circuit): Compiled {
     tubes,
   };
 }
+    xfmr,
 
 // ---------- dense linear algebra (row-major, partial pivoting) ----------
 
@@ -239,6 +247,7 @@ function assembleLinear(cp: Compiled, mode: Mode, fixed: Float64Array, x: Float6
   for (let q = 0; q < cp.res.length; q++) {
     const r = cp.res[q]!;
     stamp(f, jac, n, r.a, r.b, r.g, r.g * (volt(x, fixed, r.a) - volt(x, fixed, r.b)));
+  assembleTransformers(cp, fixed, x, f, jac);
   }
   if (mode.kind === 'tran') {
     for (let c = 0; c < cp.caps.length; c++) {
@@ -294,6 +303,30 @@ function assemble(cp: Compiled, mode: Mode, fixed: Float64Array, x: Float64Array
   assembleLinear(cp, mode, fixed, x, f, null);
   for (let q = 0; q < cp.tubes.length; q++) {
     const t = cp.tubes[q]!;
+/** Ideal transformers: primary current i leaves p1 and enters p2; −ratio·i enters s1 (linear, so cached with the rest). */
+function assembleTransformers(cp: Compiled, fixed: Float64Array, x: Float64Array, f: Float64Array, jac: Float64Array | null): void {
+  const n = cp.size;
+  for (let q = 0; q < cp.xfmr.length; q++) {
+    const t = cp.xfmr[q]!;
+    const i = x[t.row] as number;
+    addF(f, t.p1, i);
+    addF(f, t.p2, -i);
+    addF(f, t.s1, -t.ratio * i);
+    addF(f, t.s2, t.ratio * i);
+    f[t.row] = volt(x, fixed, t.p1) - volt(x, fixed, t.p2) - t.ratio * (volt(x, fixed, t.s1) - volt(x, fixed, t.s2));
+    if (jac) {
+      addJ(jac, n, t.p1, t.row, 1);
+      addJ(jac, n, t.p2, t.row, -1);
+      addJ(jac, n, t.s1, t.row, -t.ratio);
+      addJ(jac, n, t.s2, t.row, t.ratio);
+      addJ(jac, n, t.row, t.p1, 1);
+      addJ(jac, n, t.row, t.p2, -1);
+      addJ(jac, n, t.row, t.s1, -t.ratio);
+      addJ(jac, n, t.row, t.s2, t.ratio);
+    }
+  }
+}
+
     const vk = volt(x, fixed, t.k);
     const vak = volt(x, fixed, t.p) - vk;
     const vgk = volt(x, fixed, t.g) - vk;

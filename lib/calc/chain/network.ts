@@ -1,6 +1,8 @@
 import { CalcError } from '../errors';
 import type { StageInput } from '../input';
 import { Circuit, type Probe } from './circuit';
+import { pushPullWithTransformer, singleEndedWithTransformer } from '../feedback/output-transformer';
+import { applyFeedback } from '../feedback/circuit';
 import type { ChainElement, ChainInput, ChainLink, PassiveInput, RcNetworkInput, VolumeControlInput } from './input';
 
 /** Magnetising inductance of a single-ended output transformer (as in the single-stage netlists). */
@@ -109,6 +111,7 @@ function cathodeFollower(c: Circuit, id: string, input: Extract<StageInput, { to
 function singleEnded(c: Circuit, id: string, input: Extract<StageInput, { topology: 'single-ended-output' }>): Ports {
   const pentode = input.tube.model === 'koren-pentode';
   c.fix(node(id, 'bplus'), input.supply);
+  if (input.transformer) return singleEndedWithTransformer(c, id, input, { bias: (cc, i) => bias(cc, i, input.bias), screen: () => screen(c, id, input.screen, pentode) });
   if (input.primaryResistance > 0) c.resistor(`RDC_${id}`, node(id, 'bplus'), node(id, 'np'), input.primaryResistance);
   else c.alias(node(id, 'np'), node(id, 'bplus'));
   c.inductor(`LP_${id}`, node(id, 'np'), node(id, 'plate'), PRIMARY_INDUCTANCE);
@@ -133,6 +136,7 @@ function singleEnded(c: Circuit, id: string, input: Extract<StageInput, { topolo
 function pushPull(c: Circuit, id: string, input: Extract<StageInput, { topology: 'push-pull-output' }>): Ports {
   const pentode = input.tube.model === 'koren-pentode';
   c.fix(node(id, 'bplus'), input.supply);
+  if (input.transformer) return pushPullWithTransformer(c, id, input, { bias: (cc, i) => bias(cc, i, input.bias), screen: () => screen(c, id, input.screen, pentode) });
   const half = input.primaryResistance / 2;
   for (const k of ['1', '2']) {
     if (half > 0) c.resistor(`RH${k}_${id}`, node(id, 'bplus'), node(id, `n${k}`), half);
@@ -372,3 +376,4 @@ export function buildPassiveAlone(p: { id: string } & PassiveInput): { circuit: 
   c.resistor('RLEAK', ports.outputs.out!.node, '0', 1e12);
   return { circuit: c, probe: ports.outputs.out!.probe };
 }
+  if (chain.feedback) applyFeedback(c, ports, chain.feedback);

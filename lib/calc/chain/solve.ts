@@ -5,6 +5,7 @@ import type { ChainInput, PassiveInput } from './input';
 import { acResponse, compile, linearise, nodeVoltage, probeDc, probeWave, solveDc, steadyState, type Compiled, type Cycle, type DcSolution, type SteadyStart } from './mna';
 import { buildChain, buildPassiveAlone, type BuiltChain } from './network';
 import { levelSweep, type LevelSweep } from './sweep';
+import { analyzeFeedback, planFeedback, type FeedbackResult } from '../feedback/analysis';
 
 export type ChainLimit = 'grid-conduction' | 'cutoff' | 'plate-saturation' | 'none';
 
@@ -40,6 +41,8 @@ export type ChainResult = {
   networks: Array<{ id: string; topology: string; response: ResponseRow[] }>;
   sweep: LevelSweep | null;
   warnings: string[];
+  /** global negative feedback, when the chain has a loop: figures with and without it, stability */
+  feedback?: FeedbackResult;
   solver: { unknowns: number; states: number; shootingIterations: number; newtonIterations: number };
 };
 
@@ -253,7 +256,9 @@ export function passiveResponse(p: { id: string } & PassiveInput, frequencies = 
  * The chain solved end to end at the input level, with the response, the level sweep and the clip point.
  */
 export function analyzeChain(chain: ChainInput, options: ChainOptions = {}): ChainResult {
-  const p = prepareChain(chain);
+  // global feedback: polarity resolved (and positive feedback caught) before the loop is closed
+  const plan = chain.feedback ? planFeedback(chain) : null;
+  const p = plan ? plan.prepared : prepareChain(chain);
   const { amplitude, frequency } = chain.input;
   const samples = options.samples ?? 128;
   const main = solveLevel(p, amplitude, frequency, undefined, samples, true);
@@ -286,6 +291,7 @@ export function analyzeChain(chain: ChainInput, options: ChainOptions = {}): Cha
     networks,
     sweep,
     warnings,
+    ...(plan ? { feedback: analyzeFeedback(plan, plan.positiveFeedback ? null : main) } : {}),
     solver: { unknowns: p.cp.size, states: 2 * p.cp.caps.length + 2 * p.cp.inds.length, shootingIterations: main.cycle.shootingIterations, newtonIterations: main.cycle.newtonIterations },
   };
 }
