@@ -28,15 +28,6 @@ export function tickNumber(v: number): string {
   return String(Number(v.toPrecision(4)));
 }
 
-/** A rounded-up axis end: 1, 2, 2.5, 5 times a power of ten. */
-export function niceCeil(v: number): number {
-  if (!(v > 0) || !Number.isFinite(v)) return 1;
-  const p = 10 ** Math.floor(Math.log10(v));
-  const m = v / p;
-  const step = m <= 1 ? 1 : m <= 2 ? 2 : m <= 2.5 ? 2.5 : m <= 5 ? 5 : 10;
-  return step * p;
-}
-
 /** A 1-2-5 step giving about `count` intervals over the span. */
 export function niceStep(span: number, count = 6): number {
   if (!(span > 0) || !Number.isFinite(span)) return 1;

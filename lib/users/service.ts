@@ -33,10 +33,6 @@ export async function listUsers(): Promise<UserRow[]> {
   }));
 }
 
-export async function usersWithRole(role: Role) {
-  return User.findAll({ where: { role, active: true } });
-}
-
 export async function inviteUser(actorId: number, input: InviteInput, now = new Date()) {
   const data = inviteSchema.parse(input);
   const existing = await User.findOne({ where: { email: data.email } });
