@@ -40,10 +40,10 @@ export class Circuit {
   capacitors: Capacitor[] = [];
   inductors: Inductor[] = [];
   windings: Winding[] = [];
+  transformers: IdealTransformer[] = [];
   tubes: TubeElement[] = [];
   fixed: FixedNode[] = [];
   private parent = new Map<string, string>();
-  transformers: IdealTransformer[] = [];
 
   find(name: string): string {
     let n = name;
@@ -76,15 +76,15 @@ export class Circuit {
   winding(name: string, n1: string, p1: string, n2: string, p2: string, k: number): void {
     this.windings.push({ name, n1, p1, n2, p2, k });
   }
+  idealTransformer(name: string, p1: string, p2: string, s1: string, s2: string, ratio: number): void {
+    this.transformers.push({ name, p1, p2, s1, s2, ratio });
+  }
   fix(node: string, dc: number, signal = 0): void {
     this.fixed.push({ node, dc, signal });
   }
   addTube(name: string, stage: string, tube: Tube, plate: string, grid: string, cathode: string, screen: string | null): void {
     this.tubes.push({ name, stage, tube, model: tubeModel(tube), plate, grid, cathode, screen });
     // interelectrode capacitances, as in the SPICE subcircuit (Miller loading comes from these)
-  idealTransformer(name: string, p1: string, p2: string, s1: string, s2: string, ratio: number): void {
-    this.transformers.push({ name, p1, p2, s1, s2, ratio });
-  }
     const caps = tube.capacitances;
     if (caps) {
       this.capacitor(`CGK_${name}`, grid, cathode, caps.cgk);

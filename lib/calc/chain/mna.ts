@@ -84,9 +84,9 @@ export function compile(circuit: Circuit): Compiled {
     pentode: t.model.kind === 'pentode' && t.screen !== null,
   }));
   const windTerms = circuit.windings.map((w) => ({ n1: index(w.n1), p1: index(w.p1), n2: index(w.n2), p2: index(w.p2), k: w.k }));
+  const xfmr = circuit.transformers.map((t) => ({ p1: index(t.p1), p2: index(t.p2), s1: index(t.s1), s2: index(t.s2), ratio: t.ratio, row: 0 }));
   const nodes = names.length;
   const wind = windTerms.map((w, i) => ({ ...w, row: nodes + 2 * i }));
-  const xfmr = circuit.transformers.map((t) => ({ p1: index(t.p1), p2: index(t.p2), s1: index(t.s1), s2: index(t.s2), ratio: t.ratio, row: 0 }));
   for (const w of wind) names.push(`i(${w.row})`, `i(${w.row + 1})`);
   return {
     circuit,
@@ -104,10 +104,10 @@ export function compile(circuit: Circuit): Compiled {
     caps,
     inds,
     wind,
+    xfmr,
     tubes,
   };
 }
-    xfmr,
 
 // ---------- dense linear algebra (row-major, partial pivoting) ----------
 
@@ -244,6 +244,7 @@ function linearJacobian(cp: Compiled, mode: Mode): Float64Array {
 
 function assembleLinear(cp: Compiled, mode: Mode, fixed: Float64Array, x: Float64Array, f: Float64Array, jac: Float64Array | null): void {
   const n = cp.size;
+  assembleTransformers(cp, fixed, x, f, jac);
   for (let q = 0; q < cp.res.length; q++) {
     const r = cp.res[q]!;
     stamp(f, jac, n, r.a, r.b, r.g, r.g * (volt(x, fixed, r.a) - volt(x, fixed, r.b)));

@@ -354,6 +354,7 @@ export function buildChain(chain: ChainInput): BuiltChain {
       c.resistor(`RL_${p.id}`, `${p.id}.load`, '0', p.ownLoad.resistance);
     }
   }
+  if (chain.feedback) applyFeedback(c, ports, chain.feedback);
   const last = ports[ports.length - 1]!;
   return {
     circuit: c,
@@ -376,4 +377,3 @@ export function buildPassiveAlone(p: { id: string } & PassiveInput): { circuit: 
   c.resistor('RLEAK', ports.outputs.out!.node, '0', 1e12);
   return { circuit: c, probe: ports.outputs.out!.probe };
 }
-  if (chain.feedback) applyFeedback(c, ports, chain.feedback);
