@@ -31,6 +31,7 @@ import { cn } from '@/lib/utils';
 import { PlotPanel } from './plot-panel';
 import { RatingsPanel, ResultsPanel } from './results-panel';
 import { StageInputs } from './stage-inputs';
+import { suitableTube, suitsTopology } from './tube-choice';
 
 type Props = { projectId: number; stageId?: number; tubes: TubeOption[]; canEdit: boolean; initialProject?: ProjectDetail; initialStage?: StageDTO };
 
@@ -53,11 +54,6 @@ export function StageEditor({ projectId, stageId, tubes, canEdit, initialProject
   return <StageEditorForm key={stage.data?.id ?? 'new'} project={project.data} stage={stage.data ?? null} tubes={tubes} canEdit={canEdit} />;
 }
 
-function defaultTube(tubes: TubeOption[]): string {
-  const usable = tubes.filter((t) => t.models.length > 0);
-  const pick = usable.find((t) => /12AX7/i.test(t.designation)) ?? usable.find((t) => t.family === 'triode') ?? usable[0];
-  return pick ? String(pick.id) : '';
-}
 
 const STATE_TEXT: Record<LiveAnalysisState, string> = {
   current: 'Up to date',
@@ -75,7 +71,7 @@ function StageEditorForm({ project, stage, tubes, canEdit }: { project: ProjectD
     () =>
       stage
         ? fromStageInputs(stage.inputs, stage)
-        : newStageDefaults('common-cathode', { tubeId: defaultTube(tubes), name: `Stage ${project.stages.length + 1}` }),
+        : newStageDefaults('common-cathode', { tubeId: suitableTube('common-cathode', tubes), name: `Stage ${project.stages.length + 1}` }),
     // the form owns its values after the first render
     // eslint-disable-next-line react-hooks/exhaustive-deps
     [],
@@ -185,11 +181,10 @@ function StageEditorForm({ project, stage, tubes, canEdit }: { project: ProjectD
   function onTopologyChange(t: Topology) {
     if (!isNew) return;
     const next = switchTopology(form.getValues(), t);
-    // a pentode amplifier needs a pentode or beam tetrode: swap a triode for the first one in the library
+    // each topology starts from one of its usual types (an output stage does not keep the preamp's 12AX7)
     const current = tubes.find((x) => String(x.id) === next.tubeId);
-    if (t === 'pentode-amplifier' && (!current || current.family === 'triode')) {
-      const pentode = tubes.find((x) => x.family !== 'triode' && x.models.length > 0);
-      next.tubeId = pentode ? String(pentode.id) : '';
+    if (!suitsTopology(t, current)) {
+      next.tubeId = suitableTube(t, tubes);
       next.tubeModelId = '';
     }
     form.reset(next, { keepDefaultValues: true });
