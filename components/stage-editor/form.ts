@@ -10,6 +10,8 @@ export const TOPOLOGIES: { value: Topology; label: string }[] = [
   { value: 'pentode-amplifier', label: 'Pentode voltage amplifier' },
   { value: 'single-ended-output', label: 'Single-ended output' },
   { value: 'push-pull-output', label: 'Push-pull output' },
+  { value: 'long-tailed-pair', label: 'Long-tailed pair (phase splitter)' },
+  { value: 'split-load', label: 'Split-load phase splitter (concertina)' },
 ];
 
 export function topologyLabel(t: string): string {
@@ -35,8 +37,13 @@ export type StageFormValues = {
   primaryResistance: string;
   plateToPlateImpedance: string;
   class: 'A' | 'AB';
+  /** long-tailed pair: the non-inverting section's plate resistor (plateResistor is the inverting one) */
+  secondPlateResistor: string;
+  /** long-tailed pair: the tail below the shared bias resistor (bias.biasResistor) */
+  tail: { kind: 'resistor' | 'current-source'; tailResistor: string; tailSupply: string; current: string };
+  secondGridBypass: string;
   bias: {
-    kind: 'cathode' | 'fixed' | 'dc-coupled' | 'self';
+    kind: 'cathode' | 'fixed' | 'dc-coupled' | 'self' | 'bias-tap' | 'bootstrapped';
     cathodeResistor: string;
     cathodeBypass: string;
     fixedBias: string;
@@ -71,6 +78,11 @@ export const FIELD_UNITS: Record<string, string> = {
   'screen.bypass': 'F',
   'load.resistance': 'Ω',
   'load.couplingCapacitor': 'F',
+  secondPlateResistor: 'Ω',
+  'tail.tailResistor': 'Ω',
+  'tail.tailSupply': 'V',
+  'tail.current': 'A',
+  secondGridBypass: 'F',
 };
 
 /** SI number → the text a practitioner would type: 4700 → '4.7k', 2.2e-8 → '22n', -1.5 → '-1.5'. */
@@ -105,6 +117,9 @@ const BASE: StageFormValues = {
   bias: { kind: 'cathode', cathodeResistor: '1k5', cathodeBypass: '22u', fixedBias: '-2', gridVoltage: '100', biasResistor: '1k' },
   screen: { kind: 'resistor', supply: '250', resistor: '470k', bypass: '100n' },
   load: { enabled: true, resistance: '470k', couplingCapacitor: '22n' },
+  secondPlateResistor: '100k',
+  tail: { kind: 'resistor', tailResistor: '22k', tailSupply: '0', current: '2m' },
+  secondGridBypass: '100n',
 };
 
 const TOPOLOGY_DEFAULTS: Record<Topology, (v: StageFormValues) => StageFormValues> = {
@@ -114,6 +129,9 @@ const TOPOLOGY_DEFAULTS: Record<Topology, (v: StageFormValues) => StageFormValue
   'pentode-amplifier': (v) => ({ ...v, supply: '300', gridResistor: '470k', plateResistor: '22k', bias: { ...v.bias, kind: 'cathode', cathodeResistor: '1k', cathodeBypass: '22u' }, screen: { ...v.screen, kind: 'resistor', resistor: '1M', bypass: '100n' }, load: { ...v.load, enabled: true }, drive: { ...v.drive, amplitude: '0.5' } }),
   // output stages start with a grid resistor within the usual output-tube limits (cathode bias ≤ 470 kΩ, fixed ≤ 100 kΩ)
   'single-ended-output': (v) => ({ ...v, supply: '300', gridResistor: '220k', primaryImpedance: '5k', primaryResistance: '150', bias: { ...v.bias, kind: 'cathode', cathodeResistor: '300', cathodeBypass: '100u' }, screen: { ...v.screen, kind: 'fixed', supply: '280' }, load: { ...v.load, enabled: false }, drive: { ...v.drive, amplitude: '5' } }),
+  // a 12AX7/12AT7 splitter into a push-pull pair's grid leaks (common practice values)
+  'long-tailed-pair': (v) => ({ ...v, supply: '350', plateResistor: '100k', secondPlateResistor: '100k', bias: { ...v.bias, kind: 'bias-tap', biasResistor: '1k', gridVoltage: '0' }, tail: { ...v.tail, kind: 'resistor', tailResistor: '22k', tailSupply: '0' }, secondGridBypass: '100n', load: { enabled: true, resistance: '220k', couplingCapacitor: '100n' }, drive: { ...v.drive, amplitude: '2' } }),
+  'split-load': (v) => ({ ...v, supply: '350', plateResistor: '22k', cathodeResistor: '22k', bias: { ...v.bias, kind: 'bootstrapped', biasResistor: '1k5', gridVoltage: '100' }, load: { enabled: true, resistance: '220k', couplingCapacitor: '100n' }, drive: { ...v.drive, amplitude: '5' } }),
   'push-pull-output': (v) => ({ ...v, supply: '400', gridResistor: '100k', plateToPlateImpedance: '6k6', primaryResistance: '200', class: 'AB', bias: { ...v.bias, kind: 'fixed', fixedBias: '-38' }, screen: { ...v.screen, kind: 'fixed', supply: '380' }, load: { ...v.load, enabled: false }, drive: { ...v.drive, amplitude: '10' } }),
 };
 
@@ -147,20 +165,31 @@ export const BIAS_KINDS: Record<Topology, { value: StageFormValues['bias']['kind
     { value: 'cathode', label: 'Cathode bias (shared resistor)' },
     { value: 'fixed', label: 'Fixed bias (negative supply)' },
   ],
+  'long-tailed-pair': [
+    { value: 'bias-tap', label: 'Grids return to the bias tap' },
+    { value: 'dc-coupled', label: 'Grids at a DC potential (DC-coupled)' },
+  ],
+  'split-load': [
+    { value: 'bootstrapped', label: 'Grid leak to the cathode-load junction' },
+    { value: 'dc-coupled', label: 'DC-coupled grid' },
+  ],
 };
 
 /** Which optional sections a topology has. */
 export function sectionsFor(topology: Topology, tubeIsPentode: boolean) {
   return {
-    plateResistor: topology === 'common-cathode' || topology === 'pentode-amplifier' || topology === 'cathode-follower',
-    cathodeResistor: topology === 'cathode-follower',
+    plateResistor:
+      topology === 'common-cathode' || topology === 'pentode-amplifier' || topology === 'cathode-follower' || topology === 'long-tailed-pair' || topology === 'split-load',
+    cathodeResistor: topology === 'cathode-follower' || topology === 'split-load',
+    secondPlateResistor: topology === 'long-tailed-pair',
+    tail: topology === 'long-tailed-pair',
     primaryImpedance: topology === 'single-ended-output',
     plateToPlateImpedance: topology === 'push-pull-output',
     primaryResistance: topology === 'single-ended-output' || topology === 'push-pull-output',
     pushPullClass: topology === 'push-pull-output',
     // a pentode or beam tetrode in an output stage needs its screen supply
     screen: topology === 'pentode-amplifier' || ((topology === 'single-ended-output' || topology === 'push-pull-output') && tubeIsPentode),
-    load: topology === 'common-cathode' || topology === 'pentode-amplifier' || topology === 'cathode-follower',
+    load: topology === 'common-cathode' || topology === 'pentode-amplifier' || topology === 'cathode-follower' || topology === 'long-tailed-pair' || topology === 'split-load',
   };
 }
 
@@ -190,7 +219,19 @@ export function toStageBodyInput(v: StageFormValues, opts: { tubeIsPentode?: boo
   if (s.plateToPlateImpedance) body.plateToPlateImpedance = text(v.plateToPlateImpedance);
   if (s.primaryResistance) body.primaryResistance = text(v.primaryResistance) || '0';
   if (s.pushPullClass) body.class = v.class;
-  if (v.topology === 'cathode-follower') {
+  if (v.topology === 'long-tailed-pair') {
+    delete body.plateResistor;
+    body.plateResistors = { inverting: text(v.plateResistor), nonInverting: text(v.secondPlateResistor) };
+    body.tail =
+      v.tail.kind === 'current-source'
+        ? { kind: 'current-source', current: text(v.tail.current) }
+        : { kind: 'resistor', biasResistor: text(v.bias.biasResistor) || '0', tailResistor: text(v.tail.tailResistor), tailSupply: text(v.tail.tailSupply) || '0' };
+    body.grids = v.bias.kind === 'dc-coupled' ? { kind: 'dc', gridVoltage: text(v.bias.gridVoltage) } : { kind: 'bias-tap' };
+    body.secondGridBypass = text(v.secondGridBypass);
+  } else if (v.topology === 'split-load') {
+    body.biasResistor = text(v.bias.biasResistor) || '0';
+    body.bias = v.bias.kind === 'dc-coupled' ? { kind: 'dc-coupled', gridVoltage: text(v.bias.gridVoltage) } : { kind: 'bootstrapped' };
+  } else if (v.topology === 'cathode-follower') {
     body.bias = v.bias.kind === 'dc-coupled' ? { kind: 'dc-coupled', gridVoltage: text(v.bias.gridVoltage) } : { kind: 'self', biasResistor: text(v.bias.biasResistor) };
   } else {
     body.bias = v.bias.kind === 'fixed' ? { kind: 'fixed', fixedBias: text(v.bias.fixedBias) } : { kind: 'cathode', cathodeResistor: text(v.bias.cathodeResistor), cathodeBypass: blankToNull(v.bias.cathodeBypass) };
@@ -219,13 +260,33 @@ export function issuesToFieldErrors(issues: readonly z.core.$ZodIssue[]): FieldE
   return out;
 }
 
+/** The phase splitters' body fields that the form shows under another name. */
+const SPLITTER_FIELD_ALIASES: Record<string, string> = {
+  'plateResistors.inverting': 'plateResistor',
+  'plateResistors.nonInverting': 'secondPlateResistor',
+  'tail.biasResistor': 'bias.biasResistor',
+  'grids.gridVoltage': 'bias.gridVoltage',
+  'grids.kind': 'bias.kind',
+  biasResistor: 'bias.biasResistor',
+};
+
+export function toFormFieldErrors(errors: FieldErrorMap, topology: Topology): FieldErrorMap {
+  if (topology !== 'long-tailed-pair' && topology !== 'split-load') return errors;
+  const out: FieldErrorMap = {};
+  for (const [k, m] of Object.entries(errors)) {
+    const key = SPLITTER_FIELD_ALIASES[k] ?? k;
+    if (!(key in out)) out[key] = m;
+  }
+  return out;
+}
+
 export type ParsedStage = { ok: true; body: StageBody } | { ok: false; errors: FieldErrorMap };
 
 export function parseStageForm(v: StageFormValues, opts: { tubeIsPentode?: boolean } = {}): ParsedStage {
   const input = toStageBodyInput(v, opts);
   if (input.tubeId === undefined) return { ok: false, errors: { tubeId: 'Choose a tube from the library.' } };
   const r = stageBodySchema.safeParse(input);
-  return r.success ? { ok: true, body: r.data } : { ok: false, errors: issuesToFieldErrors(r.error.issues) };
+  return r.success ? { ok: true, body: r.data } : { ok: false, errors: toFormFieldErrors(issuesToFieldErrors(r.error.issues), v.topology) };
 }
 
 /** Stored stage inputs (SI numbers) → form text. Missing parts fall back to the topology's starting values. */
@@ -240,6 +301,11 @@ export function fromStageInputs(
   const bias = (i.bias ?? {}) as Record<string, unknown>;
   const screen = i.screen as Record<string, unknown> | undefined;
   const load = i.load as Record<string, unknown> | undefined;
+  const plates = i.plateResistors as Record<string, unknown> | undefined;
+  const tail = i.tail as Record<string, unknown> | undefined;
+  const grids = i.grids as Record<string, unknown> | undefined;
+  const splitterBiasKind =
+    topology === 'long-tailed-pair' ? (grids?.kind === 'dc' ? 'dc-coupled' : 'bias-tap') : topology === 'split-load' ? (bias.kind === 'dc-coupled' ? 'dc-coupled' : 'bootstrapped') : null;
   return {
     ...base,
     name: meta.name,
@@ -253,7 +319,15 @@ export function fromStageInputs(
     heaterElevation: t(i.heaterElevation, base.heaterElevation),
     derating: t(i.derating, base.derating),
     drive: { amplitude: t(i.drive?.amplitude, base.drive.amplitude), frequency: t(i.drive?.frequency, base.drive.frequency) },
-    plateResistor: t(i.plateResistor, base.plateResistor),
+    plateResistor: t(plates ? plates.inverting : i.plateResistor, base.plateResistor),
+    secondPlateResistor: t(plates?.nonInverting, base.secondPlateResistor),
+    tail: {
+      kind: tail?.kind === 'current-source' ? 'current-source' : 'resistor',
+      tailResistor: t(tail?.tailResistor, base.tail.tailResistor),
+      tailSupply: t(tail?.tailSupply, base.tail.tailSupply),
+      current: t(tail?.current, base.tail.current),
+    },
+    secondGridBypass: t(i.secondGridBypass, base.secondGridBypass),
     cathodeResistor: t(i.cathodeResistor, base.cathodeResistor),
     primaryImpedance: t(i.primaryImpedance, base.primaryImpedance),
     primaryResistance: t(i.primaryResistance, base.primaryResistance),
@@ -261,12 +335,12 @@ export function fromStageInputs(
     class: i.class === 'A' ? 'A' : i.class === 'AB' ? 'AB' : base.class,
     bias: {
       ...base.bias,
-      kind: (typeof bias.kind === 'string' ? bias.kind : base.bias.kind) as StageFormValues['bias']['kind'],
+      kind: (splitterBiasKind ?? (typeof bias.kind === 'string' ? bias.kind : base.bias.kind)) as StageFormValues['bias']['kind'],
       cathodeResistor: t(bias.cathodeResistor, base.bias.cathodeResistor),
       cathodeBypass: bias.kind === 'cathode' ? t(bias.cathodeBypass ?? null, '') : base.bias.cathodeBypass,
       fixedBias: t(bias.fixedBias, base.bias.fixedBias),
-      gridVoltage: t(bias.gridVoltage, base.bias.gridVoltage),
-      biasResistor: t(bias.biasResistor, base.bias.biasResistor),
+      gridVoltage: t(grids?.gridVoltage ?? bias.gridVoltage, base.bias.gridVoltage),
+      biasResistor: t(tail?.biasResistor ?? i.biasResistor ?? bias.biasResistor, base.bias.biasResistor),
     },
     screen: screen
       ? {

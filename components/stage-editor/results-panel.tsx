@@ -72,6 +72,7 @@ export function ResultsPanel({ analysis, stale }: { analysis: StageAnalysis; sta
         <Row label="Average current shift" value={formatMaybe(ls.dcShift, 'A')} />
         {ls.outputPower !== null ? <Row label="Output power" value={formatMaybe(ls.outputPower, 'W')} testId="output-power" /> : null}
       </Section>
+      {analysis.outputs ? <OutputsSection analysis={analysis} /> : null}
       {analysis.warnings.length ? (
         <section className="border-t border-rule px-4 py-3">
           <h3 className="mb-1 text-[11px] font-semibold text-muted">Notes from the calculation</h3>
@@ -83,6 +84,50 @@ export function ResultsPanel({ analysis, stale }: { analysis: StageAnalysis; sta
         </section>
       ) : null}
     </div>
+  );
+}
+
+const OUTPUT_LABEL: Record<string, string> = {
+  inverting: 'Inverting output (plate 1)',
+  'non-inverting': 'Non-inverting output (plate 2)',
+  plate: 'Plate output',
+  cathode: 'Cathode output',
+};
+
+/** Phase splitters: each output and the balance between them. */
+function OutputsSection({ analysis }: { analysis: StageAnalysis }) {
+  const entries = Object.entries(analysis.outputs ?? {});
+  const b = analysis.balance;
+  const hr = analysis.largeSignal.headroom;
+  return (
+    <>
+      {entries.map(([name, o]) =>
+        o ? (
+          <Section key={name} title={OUTPUT_LABEL[name] ?? name}>
+            <div data-testid={`output-${name}`}>
+              <Row label="Gain from the grid" value={`${o.gain.toPrecision(3)} ×`} testId={`output-${name}-gain`} />
+              <Row label="Amplitude at the drive" value={`${formatMaybe(o.amplitude, 'V')} peak`} />
+              <Row label="Phase" value={`${o.phaseDeg.toFixed(1)}°`} />
+              <Row label="THD (FFT)" value={pct(o.thdPercent)} />
+              <Row label="Output impedance" value={formatMaybe(o.outputImpedance, 'Ω')} />
+              <Row label="DC at the output" value={formatMaybe(o.dcVoltage, 'V')} />
+            </div>
+          </Section>
+        ) : null,
+      )}
+      <Section title="Balance">
+        {b ? (
+          <>
+            <Row label={`Amplitude ratio at ${formatEng(b.frequency, 'Hz')}`} value={`${b.ratioDb >= 0 ? '+' : ''}${b.ratioDb.toFixed(2)} dB`} testId="balance-ratio" />
+            <Row label="Phase error from antiphase" value={`${b.phaseErrorDeg.toFixed(2)}°`} testId="balance-phase" />
+          </>
+        ) : null}
+        {analysis.tailCurrent !== undefined ? (
+          <Row label={analysis.topology === 'long-tailed-pair' ? 'Tail current' : 'Cathode current'} value={formatMaybe(analysis.tailCurrent, 'A')} />
+        ) : null}
+        {hr.explanation ? <p className="py-1 text-xs text-muted" data-testid="headroom-explanation">{hr.explanation}</p> : null}
+      </Section>
+    </>
   );
 }
 

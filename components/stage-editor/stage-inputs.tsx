@@ -67,10 +67,12 @@ export function StageInputs({
   const biasKind = watch('bias.kind');
   const screenKind = watch('screen.kind');
   const loadEnabled = watch('load.enabled');
+  const tailKind = watch('tail.kind');
   const tube = tubes.find((t) => String(t.id) === tubeId);
   const tubeIsPentode = !!tube && tube.family !== 'triode';
   const s = sectionsFor(topology, tubeIsPentode);
-  const tubeChoices = topology === 'pentode-amplifier' ? tubes.filter((t) => t.family !== 'triode') : tubes;
+  const splitter = topology === 'long-tailed-pair' || topology === 'split-load';
+  const tubeChoices = topology === 'pentode-amplifier' ? tubes.filter((t) => t.family !== 'triode') : splitter ? tubes.filter((t) => t.family === 'triode') : tubes;
 
   return (
     <FieldContext.Provider value={{ register, errors }}>
@@ -134,8 +136,13 @@ export function StageInputs({
 
       <Group title="Plate">
         {s.plateResistor ? (
-          <Q name="plateResistor" label="Plate resistor" hint={topology === 'cathode-follower' ? '0 for the plate straight to B+' : undefined} />
+          <Q
+            name="plateResistor"
+            label={topology === 'long-tailed-pair' ? 'Plate resistor, inverting' : topology === 'split-load' ? 'Plate load' : 'Plate resistor'}
+            hint={topology === 'cathode-follower' ? '0 for the plate straight to B+' : topology === 'long-tailed-pair' ? 'Section 1, driven grid' : undefined}
+          />
         ) : null}
+        {s.secondPlateResistor ? <Q name="secondPlateResistor" label="Plate resistor, non-inverting" hint="Section 2; trim for balance" /> : null}
         {s.primaryImpedance ? <Q name="primaryImpedance" label="Primary impedance" hint="Reflected load" /> : null}
         {s.plateToPlateImpedance ? <Q name="plateToPlateImpedance" label="Plate-to-plate load" hint="Reflected load" /> : null}
         {s.primaryResistance ? <Q name="primaryResistance" label="Primary DC resistance" /> : null}
@@ -159,7 +166,33 @@ export function StageInputs({
             ))}
           </Select>
         </Field>
-        {topology === 'cathode-follower' ? (
+        {topology === 'long-tailed-pair' ? (
+          <>
+            <Field label="Tail" htmlFor="f-tail-kind" className="col-span-2">
+              <Select id="f-tail-kind" {...register('tail.kind')}>
+                <option value="resistor">Tail resistor</option>
+                <option value="current-source">Constant-current tail</option>
+              </Select>
+            </Field>
+            {tailKind === 'current-source' ? (
+              <Q name="tail.current" label="Tail current" className="col-span-2" />
+            ) : (
+              <>
+                <Q name="bias.biasResistor" label="Shared bias resistor" hint="Joined cathodes to the tap; 0 for none" />
+                <Q name="tail.tailResistor" label="Tail resistor" />
+                <Q name="tail.tailSupply" label="Tail return" hint="0 for ground, or a negative supply" />
+              </>
+            )}
+            {biasKind === 'dc-coupled' ? <Q name="bias.gridVoltage" label="Grid DC voltage" hint="Both grids, to ground" /> : null}
+            <Q name="secondGridBypass" label="Grid 2 bypass" hint="Grid 2 to ground" />
+          </>
+        ) : topology === 'split-load' ? (
+          <>
+            <Q name="cathodeResistor" label="Cathode load" hint="Normally equal to the plate load" />
+            <Q name="bias.biasResistor" label="Bias resistor" hint="Cathode to the cathode load" />
+            {biasKind === 'dc-coupled' ? <Q name="bias.gridVoltage" label="Grid voltage" hint="DC on the grid, to ground" /> : null}
+          </>
+        ) : topology === 'cathode-follower' ? (
           <>
             <Q name="cathodeResistor" label="Cathode resistor (total)" />
             {biasKind === 'dc-coupled' ? (
@@ -176,7 +209,7 @@ export function StageInputs({
             <Q name="bias.cathodeBypass" label="Cathode bypass" hint="Leave empty for none" />
           </>
         )}
-        <Q name="gridResistor" label="Grid leak" />
+        <Q name="gridResistor" label={topology === 'long-tailed-pair' ? 'Grid leaks (each)' : 'Grid leak'} />
       </Group>
 
       {s.screen ? (
@@ -203,7 +236,7 @@ export function StageInputs({
         <Group title="Load and coupling">
           <label className="col-span-2 flex items-center gap-2 text-sm">
             <input type="checkbox" className="h-4 w-4 accent-[var(--heater)]" {...register('load.enabled')} />
-            Feeds a load through a coupling capacitor
+            {splitter ? 'Each output feeds a load through a coupling capacitor' : 'Feeds a load through a coupling capacitor'}
           </label>
           {loadEnabled ? (
             <>

@@ -327,7 +327,12 @@ export function stageNetlist(input: StageInput, options: NetlistOptions = { anal
       lines.push(`let res_op_vscreen = v(${b.screen})`, `let res_op_iscreen = i(${sm})`, 'print res_op_vscreen res_op_iscreen');
     }
   }
+  // the splitters' input capacitor is a real value for the transient; the AC analyses take it as a short, as
+  // the engine's drive at the grid does
+  const cin = /^CIN \S+ \S+ (\S+)$/m.exec(b.body.join('\n'))?.[1];
+  const cinReal = cin !== undefined && cin !== '1';
   if (options.analyses.includes('ac')) {
+    if (cinReal) lines.push('alter CIN = 1');
     lines.push(
       `ac lin 1 ${num(f)} ${num(f)}`,
       `let r_g = v(${b.out})/v(${b.grid})`,
@@ -348,6 +353,7 @@ export function stageNetlist(input: StageInput, options: NetlistOptions = { anal
     const dt = period / steps;
     // steady state check: the output's peak-to-peak and mean over the last period and over a period 20 % earlier
     const early = 0.8 * tstop;
+    if (cinReal && options.analyses.includes('ac')) lines.push(`alter CIN = ${cin}`);
     lines.push(
       `tran ${num(dt)} ${num(tstop)} ${num(Math.min(settle - period, early - period))} ${num(dt)}`,
       `meas tran res_win1_pp PP v(${b.out}) from=${num(early - period)} to=${num(early)}`,
