@@ -7,6 +7,7 @@ import { CurvePoint } from './curve-point';
 import { CurveSet } from './curve-set';
 import { Decision } from './decision';
 import { Invitation } from './invitation';
+import { ExploreRun } from './explore-run';
 import { MailOutbox } from './mail-outbox';
 import { Project } from './project';
 import { ProjectWatcher } from './project-watcher';
@@ -21,7 +22,7 @@ let initialised = false;
 
 export function initModels(sequelize: Sequelize) {
   if (initialised) return;
-  for (const m of [User, Invitation, AuditEvent, SignInAttempt, TubeType, TubeModel, CurveSet, CurvePoint, CurveFit, Attachment, Project, ProjectWatcher, Stage, BenchCheck, Revision, Decision, MailOutbox]) {
+  for (const m of [User, Invitation, AuditEvent, SignInAttempt, TubeType, TubeModel, CurveSet, CurvePoint, CurveFit, Attachment, Project, ProjectWatcher, Stage, BenchCheck, Revision, Decision, MailOutbox, ExploreRun]) {
     m.initModel(sequelize);
   }
   TubeType.hasMany(TubeModel, { foreignKey: 'tubeTypeId', as: 'models' });
@@ -39,10 +40,11 @@ export function initModels(sequelize: Sequelize) {
   Revision.hasOne(Decision, { foreignKey: 'revisionId', as: 'decision' });
   BenchCheck.belongsTo(Stage, { foreignKey: 'stageId', as: 'stage' });
   AuditEvent.belongsTo(User, { foreignKey: 'actorId', as: 'actor' });
+  ExploreRun.belongsTo(Stage, { foreignKey: 'stageId', as: 'stage' });
   initialised = true;
 }
 
-export { Attachment, AuditEvent, BenchCheck, CurveFit, CurvePoint, CurveSet, Decision, Invitation, MailOutbox, Project, ProjectWatcher, Revision, SignInAttempt, Stage, TubeModel, TubeType, User };
+export { Attachment, AuditEvent, BenchCheck, CurveFit, CurvePoint, CurveSet, Decision, ExploreRun, Invitation, MailOutbox, Project, ProjectWatcher, Revision, SignInAttempt, Stage, TubeModel, TubeType, User };
 export type { Role } from './user';
 export { ROLES } from './user';
 export * from './types';

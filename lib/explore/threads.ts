@@ -14,10 +14,13 @@ import {
   type SearchDigest,
   type SearchResult,
   type SearchSetup,
+  type SwapCandidate,
+  type SwapRow,
   type ToleranceSetup,
   type ToleranceSummary,
   type TrialBlock,
 } from '../calc/explore';
+import type { StageInput } from '../calc/input';
 import type { ThreadTask } from './thread-entry';
 
 export type Progress = { done: number; total: number };
@@ -125,6 +128,21 @@ export class ExplorePool {
     });
     if (control.signal?.aborted) throw new ExploreCancelled();
     return result;
+  }
+
+  /** One candidate per task, in the given order. */
+  async swap(input: StageInput, candidates: SwapCandidate[], currentTubeId: number | undefined, control: RunControl = {}): Promise<SwapRow[]> {
+    let done = 0;
+    const rows = await Promise.all(
+      candidates.map((c) =>
+        this.run<SwapRow[]>({ kind: 'swap', input, candidates: [c], currentTubeId }, control.signal).then((r) => {
+          control.onProgress?.({ done: ++done, total: candidates.length });
+          return r;
+        }),
+      ),
+    );
+    if (control.signal?.aborted) throw new ExploreCancelled();
+    return rows.flat();
   }
 
   /** Starts the threads and loads the engine in each, so the first run is not timed with start-up. */

@@ -187,6 +187,11 @@ export const RULES: Rule[] = [
     ok: 404,
   },
   { route: 'GET /api/revisions/{id}/report', handler: async () => (await import('@/app/api/revisions/[id]/report/route')).GET, request: { params: { id: '999999' } }, allowed: ['admin', 'designer', 'reviewer'], ok: 404 },
+  // --- explore ---
+  { route: 'POST /api/explore/runs', handler: async () => (await import('@/app/api/explore/runs/route')).POST, request: { method: 'POST', body: { kind: 'swap', target: { stageId: 999999 } } }, allowed: ['admin', 'designer'], ok: 404 },
+  { route: 'GET /api/explore/runs', handler: async () => (await import('@/app/api/explore/runs/route')).GET, request: { path: '/api/explore/runs?stageId=999999' }, allowed: ALL, ok: 200 },
+  { route: 'GET /api/explore/runs/{id}', handler: async () => (await import('@/app/api/explore/runs/[id]/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
+  { route: 'POST /api/explore/runs/{id}/cancel', handler: async () => (await import('@/app/api/explore/runs/[id]/cancel/route')).POST, request: { method: 'POST', params: { id: '999999' } }, allowed: ['admin', 'designer'], ok: 404 },
 ];
 
 describe('route rules: 401 for anonymous, 403 for a role that may not, the allowed status otherwise', () => {
