@@ -1,6 +1,7 @@
 import 'server-only';
 import { performance } from 'node:perf_hooks';
 import { ApiError } from '@/lib/api/errors';
+import { can } from '@/lib/auth/policy';
 import { readFormCapped, refuseUnsafeText } from '@/lib/api/with-user';
 import { isSafeText, UNSAFE_TEXT_MESSAGE } from '@/lib/validation/text';
 import type { CurrentUser } from '@/lib/auth/session';
@@ -272,6 +273,7 @@ export async function acceptFit(actor: CurrentUser, curveSetId: number, body: { 
       source: `fitted from curve set ${set.id}`,
       setDefault: body.setDefault,
       curveFitId: fit.id,
+      mayDefaultPublished: can(actor.role, 'tubes:edit-published'),
     });
     return { model: toModelRow(model), fit: toFitRow(fit) };
   });

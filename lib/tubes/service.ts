@@ -264,13 +264,15 @@ async function createModelRow(
   transaction: Transaction,
   actorId: number,
   tube: TubeType,
-  m: { name: string; kind: ModelRow['kind']; parameters: Record<string, number>; source: string; setDefault?: boolean; curveFitId?: number | null },
+  m: { name: string; kind: ModelRow['kind']; parameters: Record<string, number>; source: string; setDefault?: boolean; curveFitId?: number | null; mayDefaultPublished?: boolean },
 ) {
   if (!modelMatchesFamily(m.kind, tube.family)) {
     throw new ApiError('unprocessable_entity', `A ${tube.family} cannot take a ${m.kind} model.`, { fieldErrors: { kind: ['Use a Koren triode model for a triode.'] } });
   }
   const existingDefault = await TubeModel.findOne({ where: { tubeTypeId: tube.id, isDefault: true }, transaction });
-  const makeDefault = m.setDefault === true || !existingDefault;
+  // The first model of a type becomes its default by itself – except on a published entry, whose default only an
+  // admin sets (explicitly), so one designer's model does not become everyone's.
+  const makeDefault = m.setDefault === true || (!existingDefault && (!tube.published || m.mayDefaultPublished === true));
   if (makeDefault && existingDefault) await existingDefault.update({ isDefault: false }, { transaction });
   const row = await TubeModel.create(
     {
@@ -366,7 +368,7 @@ export async function addModel(actor: CurrentUser, tubeTypeId: number, input: Mo
   const row = await sequelize.transaction(async (transaction) => {
     const tube = await lockTube(tubeTypeId, transaction);
     if (data.setDefault) assertMayEdit(actor, tube, 'change the default model of');
-    return createModelRow(transaction, actor.id, tube, { ...data, parameters: data.parameters as Record<string, number> });
+    return createModelRow(transaction, actor.id, tube, { ...data, parameters: data.parameters as Record<string, number>, mayDefaultPublished: can(actor.role, 'tubes:edit-published') });
   });
   return toModelRow(row);
 }
@@ -406,12 +408,20 @@ export async function getModel(tubeTypeId: number, modelId: number) {
  */
 export { engineTubeFrom };
 
+/**
+ * The model used when none is chosen: the type's default, or failing that one of its published models. A user's
+ * own model on a type without a default is used only when chosen by id.
+ */
+function defaultModelWhere(tubeTypeId: number): WhereOptions<TubeModel> {
+  return { tubeTypeId, [Op.or]: [{ isDefault: true }, { published: true }] };
+}
+
 export async function getEngineTube(tubeTypeId: number, modelId?: number, transaction?: Transaction): Promise<Tube> {
   const tube = await TubeType.findByPk(tubeTypeId, { transaction });
   if (!tube) throw new ApiError('not_found', 'No such tube type.');
   const model = modelId
     ? await TubeModel.findOne({ where: { id: modelId, tubeTypeId }, transaction })
-    : await TubeModel.findOne({ where: { tubeTypeId }, order: [['isDefault', 'DESC'], ['id', 'ASC']], transaction });
+    : await TubeModel.findOne({ where: defaultModelWhere(tubeTypeId), order: [['isDefault', 'DESC'], ['id', 'ASC']], transaction });
   if (!model) {
     if (modelId) throw new ApiError('not_found', `Model ${modelId} does not belong to ${tube.designation}.`);
     throw new ApiError('unprocessable_entity', `${tube.designation} has no model yet (ratings only); upload measured curves and fit one, or enter parameters by hand.`, {
@@ -478,7 +488,7 @@ export async function tubePlot(tubeTypeId: number, opts: { modelId?: number; vaM
   if (!t) throw new ApiError('not_found', 'No such tube type.');
   const m = opts.modelId
     ? await TubeModel.findOne({ where: { id: opts.modelId, tubeTypeId } })
-    : await TubeModel.findOne({ where: { tubeTypeId }, order: [['isDefault', 'DESC'], ['id', 'ASC']] });
+    : await TubeModel.findOne({ where: defaultModelWhere(tubeTypeId), order: [['isDefault', 'DESC'], ['id', 'ASC']] });
   if (!m) throw new ApiError(opts.modelId ? 'not_found' : 'unprocessable_entity', opts.modelId ? 'No such model for this tube type.' : `${t.designation} has no model yet, so there are no curves to draw.`);
   const tube = engineTubeFrom(t, m);
   const engine = calc.tubeModel(tube);
@@ -552,7 +562,7 @@ export async function compareTubes(ids: number[], opts: { vaMax?: number } = {})
   const series: CompareSeries[] = [];
   for (const id of unique) {
     const t = types.find((x) => x.id === id)!;
-    const m = await TubeModel.findOne({ where: { tubeTypeId: id }, order: [['isDefault', 'DESC'], ['id', 'ASC']] });
+    const m = await TubeModel.findOne({ where: defaultModelWhere(id), order: [['isDefault', 'DESC'], ['id', 'ASC']] });
     if (!m) throw new ApiError('unprocessable_entity', `${t.designation} has no model yet, so it cannot be drawn.`, { fieldErrors: { ids: [`${t.designation} has no model.`] } });
     const engine = calc.tubeModel(engineTubeFrom(t, m));
     const pentode = m.kind === 'koren-pentode';
