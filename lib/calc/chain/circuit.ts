@@ -14,14 +14,14 @@ export type Capacitor = { name: string; a: string; b: string; c: number };
 export type Inductor = { name: string; a: string; b: string; l: number };
 /** Ideal centre-tapped output transformer: v(n1)−v(p1) = k·(i1−i2) = v(p2)−v(n2), k = Raa/4. */
 export type Winding = { name: string; n1: string; p1: string; n2: string; p2: string; k: number };
-export type TubeElement = {
-  name: string;
 /**
  * Ideal two-winding transformer (no magnetising current, no leakage): v(p1)−v(p2) = ratio·(v(s1)−v(s2)) and
  * ampere-turns balance, so the current into s1 is −ratio times the current into p1. Real transformers are built
  * around it from R, L and C (lib/calc/feedback/output-transformer.ts).
  */
 export type IdealTransformer = { name: string; p1: string; p2: string; s1: string; s2: string; ratio: number };
+export type TubeElement = {
+  name: string;
   tube: Tube;
   model: TubeModel;
   plate: string;

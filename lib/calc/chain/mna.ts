@@ -37,9 +37,9 @@ export type Compiled = {
   caps: { a: Term; b: Term; c: number; be: boolean }[];
   inds: { a: Term; b: Term; l: number }[];
   wind: { n1: Term; p1: Term; n2: Term; p2: Term; k: number; row: number }[];
-  tubes: { p: Term; g: Term; k: Term; s: Term; model: TubeModel; pentode: boolean }[];
   /** ideal transformers: one primary-current unknown each, after the winding currents */
   xfmr: { p1: Term; p2: Term; s1: Term; s2: Term; ratio: number; row: number }[];
+  tubes: { p: Term; g: Term; k: Term; s: Term; model: TubeModel; pentode: boolean }[];
 };
 
 export function compile(circuit: Circuit): Compiled {
@@ -88,12 +88,12 @@ export function compile(circuit: Circuit): Compiled {
   const nodes = names.length;
   const wind = windTerms.map((w, i) => ({ ...w, row: nodes + 2 * i }));
   for (const w of wind) names.push(`i(${w.row})`, `i(${w.row + 1})`);
-  return {
-    circuit,
   for (const t of xfmr) {
     t.row = names.length;
     names.push(`i(${t.row})`);
   }
+  return {
+    circuit,
     names,
     nodes,
     size: names.length,
@@ -248,7 +248,6 @@ function assembleLinear(cp: Compiled, mode: Mode, fixed: Float64Array, x: Float6
   for (let q = 0; q < cp.res.length; q++) {
     const r = cp.res[q]!;
     stamp(f, jac, n, r.a, r.b, r.g, r.g * (volt(x, fixed, r.a) - volt(x, fixed, r.b)));
-  assembleTransformers(cp, fixed, x, f, jac);
   }
   if (mode.kind === 'tran') {
     for (let c = 0; c < cp.caps.length; c++) {
@@ -296,14 +295,6 @@ function assembleLinear(cp: Compiled, mode: Mode, fixed: Float64Array, x: Float6
   }
 }
 
-/** Residual (currents leaving each unknown node; winding equations) and its Jacobian at x. */
-function assemble(cp: Compiled, mode: Mode, fixed: Float64Array, x: Float64Array, f: Float64Array, jac: Float64Array | null): void {
-  const n = cp.size;
-  f.fill(0);
-  if (jac) jac.set(linearJacobian(cp, mode));
-  assembleLinear(cp, mode, fixed, x, f, null);
-  for (let q = 0; q < cp.tubes.length; q++) {
-    const t = cp.tubes[q]!;
 /** Ideal transformers: primary current i leaves p1 and enters p2; −ratio·i enters s1 (linear, so cached with the rest). */
 function assembleTransformers(cp: Compiled, fixed: Float64Array, x: Float64Array, f: Float64Array, jac: Float64Array | null): void {
   const n = cp.size;
@@ -328,6 +319,14 @@ function assembleTransformers(cp: Compiled, fixed: Float64Array, x: Float64Array
   }
 }
 
+/** Residual (currents leaving each unknown node; winding equations) and its Jacobian at x. */
+function assemble(cp: Compiled, mode: Mode, fixed: Float64Array, x: Float64Array, f: Float64Array, jac: Float64Array | null): void {
+  const n = cp.size;
+  f.fill(0);
+  if (jac) jac.set(linearJacobian(cp, mode));
+  assembleLinear(cp, mode, fixed, x, f, null);
+  for (let q = 0; q < cp.tubes.length; q++) {
+    const t = cp.tubes[q]!;
     const vk = volt(x, fixed, t.k);
     const vak = volt(x, fixed, t.p) - vk;
     const vgk = volt(x, fixed, t.g) - vk;

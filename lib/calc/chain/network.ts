@@ -110,8 +110,8 @@ function cathodeFollower(c: Circuit, id: string, input: Extract<StageInput, { to
 
 function singleEnded(c: Circuit, id: string, input: Extract<StageInput, { topology: 'single-ended-output' }>): Ports {
   const pentode = input.tube.model === 'koren-pentode';
-  c.fix(node(id, 'bplus'), input.supply);
   if (input.transformer) return singleEndedWithTransformer(c, id, input, { bias: (cc, i) => bias(cc, i, input.bias), screen: () => screen(c, id, input.screen, pentode) });
+  c.fix(node(id, 'bplus'), input.supply);
   if (input.primaryResistance > 0) c.resistor(`RDC_${id}`, node(id, 'bplus'), node(id, 'np'), input.primaryResistance);
   else c.alias(node(id, 'np'), node(id, 'bplus'));
   c.inductor(`LP_${id}`, node(id, 'np'), node(id, 'plate'), PRIMARY_INDUCTANCE);
@@ -135,8 +135,8 @@ function singleEnded(c: Circuit, id: string, input: Extract<StageInput, { topolo
 
 function pushPull(c: Circuit, id: string, input: Extract<StageInput, { topology: 'push-pull-output' }>): Ports {
   const pentode = input.tube.model === 'koren-pentode';
-  c.fix(node(id, 'bplus'), input.supply);
   if (input.transformer) return pushPullWithTransformer(c, id, input, { bias: (cc, i) => bias(cc, i, input.bias), screen: () => screen(c, id, input.screen, pentode) });
+  c.fix(node(id, 'bplus'), input.supply);
   const half = input.primaryResistance / 2;
   for (const k of ['1', '2']) {
     if (half > 0) c.resistor(`RH${k}_${id}`, node(id, 'bplus'), node(id, `n${k}`), half);
