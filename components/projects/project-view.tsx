@@ -14,6 +14,7 @@ import { Input, Textarea } from '@/components/ui/input';
 import type { ProjectDetail, StageDTO, WatcherOption } from '@/lib/projects/service';
 import { ApiRequestError, fetchJson } from '@/lib/hooks/fetch-json';
 import { TOPOLOGY_LABELS } from '@/lib/report/labels';
+import { PdfDownloadButton } from '@/components/shell/pdf-download-button';
 import { formatEng } from '@/lib/format/number';
 import { cn } from '@/lib/utils';
 import { renameProjectSchema, type RenameProjectInput } from '@/lib/validation/project';
@@ -80,9 +81,7 @@ export function ProjectView({ initialProject, canWrite, watcherOptions = [] }: {
           )}
         </div>
         <div className="flex flex-wrap gap-2">
-          <a className={buttonVariants({ variant: 'secondary', size: 'sm' })} href={`/api/projects/${project.id}/report`} download>
-            Design report (PDF)
-          </a>
+          <PdfDownloadButton href={`/api/projects/${project.id}/report`} filename={`anodyne-${project.name.replace(/[^A-Za-z0-9]+/g, '-').toLowerCase()}-report.pdf`} label="Design report (PDF)" />
           {canWrite && !project.archived ? (
             <SubmitForReviewButton projectId={project.id} status={project.status} disabledReason={project.stages.length === 0 ? 'Add a stage before submitting for review.' : null} />
           ) : null}

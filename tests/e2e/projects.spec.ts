@@ -41,7 +41,7 @@ test('a technician reads projects but gets no edit controls', async ({ page }) =
   await expect(page.getByTestId('chain-view')).toBeVisible();
   await expect(page.getByRole('link', { name: 'Add stage' })).toHaveCount(0);
   await expect(page.getByRole('button', { name: 'Save supply' })).toHaveCount(0);
-  await expect(page.getByRole('link', { name: 'Design report (PDF)' })).toBeVisible();
+  await expect(page.getByRole('button', { name: 'Design report (PDF)' })).toBeVisible();
 });
 
 test('a designer creates a project and gets field messages for a bad supply value', async ({ page }) => {

@@ -7,6 +7,7 @@ import { STATE_WORDS } from '@/components/reviews/labels';
 import { FrozenResults } from '@/components/reviews/frozen-results';
 import { RevisionDiffView } from '@/components/reviews/revision-diff';
 import { Caution } from '@/components/shell/caution';
+import { PdfDownloadButton } from '@/components/shell/pdf-download-button';
 import { StatusBadge } from '@/components/ui/badge';
 import { Card, CardBody, CardHeader, PageHeader } from '@/components/ui/card';
 import { ApiError } from '@/lib/api/errors';
@@ -53,9 +54,7 @@ export default async function RevisionPage({ params, searchParams }: { params: P
           </>
         }
         actions={
-          <a href={`/api/revisions/${rev.id}/report`} className="inline-flex h-9 items-center rounded-md border border-rule bg-sheet px-3.5 text-sm font-medium hover:bg-paper">
-            PDF report
-          </a>
+          <PdfDownloadButton href={`/api/revisions/${rev.id}/report`} filename={`anodyne-revision-${rev.number}.pdf`} label="PDF report" size="md" />
         }
       />
       <Caution />
