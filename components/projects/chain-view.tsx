@@ -9,7 +9,7 @@ import type { ChainResult, ChainStageResult } from '@/lib/calc/chain';
 import type { ProjectDetail } from '@/lib/projects/service';
 import { fetchJson } from '@/lib/hooks/fetch-json';
 import { LIMIT_WORDS } from '@/lib/report/labels';
-import { formatEng } from '@/lib/format/number';
+import { formatEng, formatRatio } from '@/lib/format/number';
 import { cn } from '@/lib/utils';
 import { chainQuerySchema } from '@/lib/validation/project';
 
@@ -88,7 +88,7 @@ function ChainSummary({ c }: { c: ChainResult }) {
       <div className="rounded-md border border-rule bg-paper/50 px-3 py-2">
         <dt className="text-xs text-muted">Whole-chain gain</dt>
         <dd className="num text-base">
-          {c.totalGain !== null ? `× ${c.totalGain.toPrecision(4)}` : '–'}
+          {c.totalGain !== null ? `× ${formatRatio(c.totalGain, 4)}` : '–'}
           {c.totalGainDb !== null ? <span className="ml-2 text-muted">{c.totalGainDb.toFixed(1)} dB</span> : null}
         </dd>
       </div>
@@ -138,7 +138,7 @@ function StageBlock({ s, first, upstreamClipped }: { s: ChainStageResult; first:
       ) : (
         <dl className="mt-1.5 grid grid-cols-[auto_1fr] gap-x-2 gap-y-0.5 text-xs">
           <dt className="text-muted">Gain</dt>
-          <dd className="num text-right">{s.gain !== null ? `× ${Math.abs(s.gain).toFixed(2)}${s.gain < 0 ? ' (inv.)' : ''}` : '–'}</dd>
+          <dd className="num text-right">{s.gain !== null ? `× ${formatRatio(Math.abs(s.gain))}${s.gain < 0 ? ' (inv.)' : ''}` : '–'}</dd>
           <dt className="text-muted">At its grid</dt>
           <dd className="whitespace-nowrap text-right">{upstreamClipped ? <span className="text-muted">clipped before</span> : <><Num v={s.inputRms} unit="V" /> rms</>}</dd>
           <dt className="text-muted">Output</dt>

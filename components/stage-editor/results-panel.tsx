@@ -3,7 +3,7 @@
 // Operating point, small- and large-signal results and every rating check, as the engine returned them.
 import { StatusBadge } from '@/components/ui/badge';
 import type { RatingCheck, StageAnalysis } from '@/lib/calc';
-import { formatEng, formatMaybe } from '@/lib/format/number';
+import { formatEng, formatMaybe, formatRatio } from '@/lib/format/number';
 import { cn } from '@/lib/utils';
 
 const LIMITED_BY: Record<string, string> = {
@@ -53,10 +53,10 @@ export function ResultsPanel({ analysis, stale }: { analysis: StageAnalysis; sta
         <Row label="Plate dissipation" value={formatMaybe(op.plateDissipation, 'W')} />
       </Section>
       <Section title="Small signal">
-        <Row label="Transconductance, gm" value={`${(ss.gm * 1e3).toPrecision(3)} mA/V`} />
+        <Row label="Transconductance, gm" value={`${formatRatio(ss.gm * 1e3)} mA/V`} />
         <Row label="Plate resistance, ra" value={formatMaybe(ss.ra, 'Ω')} />
-        <Row label="Amplification factor, µ" value={ss.mu.toPrecision(3)} />
-        <Row label="Voltage gain" value={`${ss.gain.toPrecision(3)} × (${ss.gainDb.toFixed(1)} dB)`} testId="gain" />
+        <Row label="Amplification factor, µ" value={formatRatio(ss.mu)} />
+        <Row label="Voltage gain" value={`${formatRatio(ss.gain)} × (${ss.gainDb.toFixed(1)} dB)`} testId="gain" />
         <Row label="Output impedance" value={formatMaybe(ss.outputImpedance, 'Ω')} />
         <Row label="Low −3 dB point" value={formatMaybe(ss.lowCutoff, 'Hz')} />
         <Row label="High −3 dB point" value={formatMaybe(ss.highCutoff, 'Hz')} />
@@ -105,7 +105,7 @@ function OutputsSection({ analysis }: { analysis: StageAnalysis }) {
         o ? (
           <Section key={name} title={OUTPUT_LABEL[name] ?? name}>
             <div data-testid={`output-${name}`}>
-              <Row label="Gain from the grid" value={`${o.gain.toPrecision(3)} ×`} testId={`output-${name}-gain`} />
+              <Row label="Gain from the grid" value={`${formatRatio(o.gain)} ×`} testId={`output-${name}-gain`} />
               <Row label="Amplitude at the drive" value={`${formatMaybe(o.amplitude, 'V')} peak`} />
               <Row label="Phase" value={`${o.phaseDeg.toFixed(1)}°`} />
               <Row label="THD (FFT)" value={pct(o.thdPercent)} />

@@ -259,9 +259,16 @@ export function analyzeSplitter(spec: SplitterSpec): StageAnalysis {
   // one continuation chain per drive polarity (criteria alternate between them)
   let lastPos = idle;
   let lastNeg = idle;
+  // the criteria walk out from the same scale by doubling, so many drive levels repeat across criteria
+  const solved = new Map<number, NodalState>();
   const hctx: HeadroomContext = {
-    solve: (a: number) =>
-      a >= 0 ? (lastPos = solveHeld(m0, a, lastPos.v, newNodalState(held))) : (lastNeg = solveHeld(m0, a, lastNeg.v, newNodalState(held))),
+    solve: (a: number) => {
+      const hit = solved.get(a);
+      if (hit) return hit;
+      const s = a >= 0 ? (lastPos = solveHeld(m0, a, lastPos.v, newNodalState(held))) : (lastNeg = solveHeld(m0, a, lastNeg.v, newNodalState(held)));
+      solved.set(a, s);
+      return s;
+    },
     circuit: held,
     idle,
   };
