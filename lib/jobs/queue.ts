@@ -27,13 +27,14 @@ export function queue(databaseUrl: string, role: QueueRole, queues: QueueDefinit
         max: role === 'app' ? 3 : 4,
         supervise: role === 'worker',
         schedule: false,
-        migrate: true,
+        // the schema and the queues are made by a migration (the owner role); this role may not run DDL
+        migrate: false,
       });
       boss.on('error', (err: Error) => console.error(`[jobs] ${err.message}`));
       await boss.start();
-      for (const q of queues) {
-        await boss.createQueue(q.name, { name: q.name, retryLimit: q.retryLimit, retryDelay: 0, expireInSeconds: JOB_EXPIRE_SECONDS });
-      }
+      const existing = new Set((await boss.getQueues()).map((q) => q.name));
+      const missing = queues.filter((q) => !existing.has(q.name)).map((q) => q.name);
+      if (missing.length) throw new Error(`The job queue ${missing.join(', ')} does not exist: run the migrations (npm run db:migrate).`);
       return boss;
     })();
     p.catch(() => map.delete(key));
