@@ -4,7 +4,8 @@ import { migrator } from '@/lib/db/migrator';
 import { createSequelize } from '@/lib/db/sequelize';
 
 // Runs every migration up, all the way down, and up again on an empty database of its own.
-const base = process.env.DATABASE_URL!;
+// the owner role: migrations create and drop tables (the app's role may not)
+const base = process.env.MIGRATION_DATABASE_URL ?? process.env.DATABASE_URL!;
 const dbName = `anodyne_migrations_${process.pid}`;
 const adminUrl = base.replace(/\/[^/]+$/, '/postgres');
 let admin: Sequelize;
