@@ -3,6 +3,7 @@ import { readFileSync } from 'node:fs';
 import { analyzeStage, CalcError } from '../lib/calc';
 import { stageInputSchema } from '../lib/validation/stage';
 import { runChainCli } from './calc-chain';
+import { runSupplyCli } from './calc-supply';
 
 process.stdout.on('error', (err: NodeJS.ErrnoException) => {
   if (err.code === 'EPIPE') process.exit(0);
@@ -15,6 +16,7 @@ function fail(message: string, code: number): never {
 }
 
 const arg = process.argv[2];
+if (arg === '--supply') runSupplyCli(process.argv[3]);
 if (arg === '--chain') runChainCli(process.argv.slice(3));
 if (!arg) fail('usage: npm run -s calc -- FILE.json   (use - for stdin)', 64);
 

@@ -111,6 +111,23 @@ export const RULES: Rule[] = [
     ok: 404,
   },
   {
+    route: 'POST /api/analyze-supply',
+    handler: async () => (await import('@/app/api/analyze-supply/route')).POST,
+    request: {
+      method: 'POST',
+      body: {
+        mains: { voltage: 230, frequency: 50 },
+        secondary: { voltage: 300, resistance: 40 },
+        rectifier: { kind: 'silicon-bridge' },
+        reservoir: { capacitance: '47u' },
+        sections: [{ kind: 'resistor', resistance: '1k' }, { kind: 'capacitor', capacitance: '22u' }],
+        loads: [{ node: 1, current: 0.05 }],
+      },
+    },
+    allowed: ALL,
+    ok: 200,
+  },
+  {
     route: 'POST /api/analyze',
     handler: async () => (await import('@/app/api/analyze/route')).POST,
     request: {

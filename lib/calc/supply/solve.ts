@@ -138,7 +138,13 @@ function solveCase(p: PreparedSupply, currents: number[], peakFactor: number, ta
   const bd = loadTerm(p.net, p.disc, currents);
   const base = from ? p.warm.get(from.tag) : undefined;
   const guess = p.warm.get(tag) ?? (base ? base.map((v) => v * from!.factor) : initialGuess(p, currents, src.peak));
-  const ss = steadyState(p.net, p.disc, bd, src, p.steps, guess, scaleOf(p, currents), p.wsp, currents[0]!);
+  const scale = scaleOf(p, currents);
+  const warmStart = p.warm.has(tag) || !!base;
+  // a warm start far from the answer (e.g. a choke input going from continuous to discontinuous current) may not
+  // settle: then Newton starts again from the hand estimate before plain integration is tried
+  const ss =
+    (warmStart ? steadyState(p.net, p.disc, bd, src, p.steps, guess, scale, p.wsp, currents[0]!, false) : null) ??
+    steadyState(p.net, p.disc, bd, src, p.steps, initialGuess(p, currents, src.peak), scale, p.wsp, currents[0]!)!;
   p.warm.set(tag, ss.y);
   for (let j = 0; j < p.net.k; j++) {
     const v = ss.record.v[j]!;
@@ -222,13 +228,25 @@ export function supplyNodeVoltages(p: PreparedSupply, currents: number[]): numbe
   return s.record.v.map((v) => mean(v, p.steps));
 }
 
+/** Node DC voltages at idle and at full drive for extra per-node currents (no ratings, waveforms or transients). */
+export function supplyDc(p: PreparedSupply, extra: { idle: number[]; full: number[] }): { idle: number[]; full: number[] } {
+  const idleCurrents = p.net.idle.map((c, j) => c + (extra.idle[j] ?? 0));
+  const fullCurrents = p.net.full.map((c, j) => c + (extra.full[j] ?? 0));
+  const idle = solveCase(p, idleCurrents, 1, 'idle');
+  const idleDc = idle.record.v.map((v) => mean(v, p.steps));
+  if (fullCurrents.every((c, j) => c === idleCurrents[j])) return { idle: idleDc, full: idleDc };
+  const full = solveCase(p, fullCurrents, 1, 'full', { tag: 'idle', factor: 1 });
+  return { idle: idleDc, full: full.record.v.map((v) => mean(v, p.steps)) };
+}
+
 /** Full solution with per-node idle and full-drive currents (A per node, added to the circuit's own loads). */
 export function solvePrepared(p: PreparedSupply, extra: { idle?: number[]; full?: number[] } = {}, options: SupplyOptions = {}): SupplyResult {
   const { net, steps, frequency, variation } = p;
   const derating = options.derating ?? DEFAULT_SUPPLY_DERATING;
   const idleCurrents = net.idle.map((c, j) => c + (extra.idle?.[j] ?? 0));
   const fullCurrents = net.full.map((c, j) => c + (extra.full?.[j] ?? extra.idle?.[j] ?? 0));
-  for (const c of [...idleCurrents, ...fullCurrents]) if (!Number.isFinite(c) || c < 0) throw new CalcError('invalid-input', 'Load currents must be zero or more.');
+  // extra currents may be negative: a stage taken as a current plus a conductance (see with-stages.ts)
+  for (const c of [...idleCurrents, ...fullCurrents]) if (!Number.isFinite(c)) throw new CalcError('invalid-input', 'Load currents must be finite numbers.');
   const idle = solveCase(p, idleCurrents, 1, 'idle');
   const sameLoad = options.idleOnly || fullCurrents.every((c, j) => c === idleCurrents[j]);
   const full = sameLoad ? idle : solveCase(p, fullCurrents, 1, 'full', { tag: 'idle', factor: 1 });
@@ -247,7 +265,7 @@ export function solvePrepared(p: PreparedSupply, extra: { idle?: number[]; full?
     high = hi.record.v.map((v) => mean(v, steps));
     // switch-on: tubes not yet conducting (only bleeders load the supply), high mains, switched at the mains peak
     const zero = new Array<number>(net.k).fill(0);
-    const st = solveCase(p, zero, 1 + variation, 'unloaded', { tag: 'high', factor: 1 });
+    const st = solveCase(p, zero, 1 + variation, 'unloaded');
     const maxTrack = new Float64Array(net.k);
     for (let j = 0; j < net.k; j++) maxTrack[j] = peakOf(st.record.v[j]!);
     const maxCurrent = { value: 0 };
