@@ -94,6 +94,18 @@ export function formatMaybe(value: number | null | undefined, unit = '', digits 
   return typeof value === 'number' && Number.isFinite(value) ? formatEng(value, unit, digits).replace(/^-/, '−') : '–';
 }
 
+/**
+ * A dimensionless ratio (gain, µ, a multiplier) with `digits` significant figures and a true minus sign: plain
+ * figures between 0.001 and 1000 (0.985, −57.3, 100), an SI prefix beyond (39.5 k); never scientific notation.
+ */
+export function formatRatio(value: number | null | undefined, digits = 3): string {
+  if (typeof value !== 'number' || !Number.isFinite(value)) return '–';
+  const abs = Math.abs(value);
+  if (abs === 0 || abs < 1e-15) return '0';
+  const text = abs >= 1e-3 && abs < 1000 ? trimZeros(value.toPrecision(digits)) : formatEng(value, '', digits);
+  return text.replace(/^-/, '−');
+}
+
 /** Any stored result value (numbers, flags, words): percentages to 2 decimals, plain ratios to 4 figures. */
 export function formatValue(v: unknown, unit: string): string {
   if (v === null || v === undefined) return '–';
