@@ -264,7 +264,11 @@ export function analyzeSplitter(spec: SplitterSpec): StageAnalysis {
   const hctx: HeadroomContext = {
     solve: (a: number) => {
       const hit = solved.get(a);
-      if (hit) return hit;
+      if (hit) {
+        // fixed nodes (the driven grid) are read from the circuit: set them for this drive level
+        setHeld(m0, a);
+        return hit;
+      }
       const s = a >= 0 ? (lastPos = solveHeld(m0, a, lastPos.v, newNodalState(held))) : (lastNeg = solveHeld(m0, a, lastNeg.v, newNodalState(held)));
       solved.set(a, s);
       return s;

@@ -148,6 +148,39 @@ describe('split-load (concertina)', () => {
   });
 });
 
+describe('headroom of a bootstrapped split-load stage (12AU7, 22 k loads, 1k5 bias resistor)', () => {
+  const boot = (amplitude: number) =>
+    analyze({
+      topology: 'split-load',
+      tube: AU7,
+      supply: 350,
+      gridResistor: '1M',
+      plateResistor: '22k',
+      cathodeResistor: '22k',
+      biasResistor: '1k5',
+      bias: { kind: 'bootstrapped' },
+      load: { resistance: '220k', couplingCapacitor: '100n' },
+      drive: { amplitude, frequency: 1000 },
+    });
+
+  it('the grid reaches the cathode first (the cathode side), and distortion grows fast past that drive', () => {
+    const h = boot(0).largeSignal.headroom;
+    expect(h.limitedBy).toBe('grid-conduction');
+    expect(h.side).toBe('cathode');
+    const beyond = (a: ReturnType<typeof boot>) => a.warnings.some((w) => w.includes('beyond the headroom limit'));
+    const at = (f: number) => boot(f * h.maxDrive);
+    const half = at(0.5);
+    const below = at(0.97);
+    const past = at(1.5);
+    expect(beyond(below)).toBe(false);
+    expect(beyond(at(1.05))).toBe(true);
+    // below the limit THD grows about in proportion to the drive (second-order curvature); past it, much faster
+    const thd = (a: ReturnType<typeof boot>) => a.outputs!.cathode!.thdPercent;
+    expect(thd(below) / thd(half)).toBeLessThan(2.2);
+    expect(thd(past) / thd(below)).toBeGreaterThan(3);
+  });
+});
+
 describe('push-pull pair driven by two grid waveforms', () => {
   const pp = stageInputSchema.parse({
     topology: 'push-pull-output',
