@@ -11,6 +11,8 @@ import { tubeModel, type TubeModel } from '../models/registry';
  */
 export type Resistor = { name: string; a: string; b: string; r: number };
 export type Capacitor = { name: string; a: string; b: string; c: number };
+/** A constant current from a to b through the source (a tail current sink). */
+export type CurrentSource = { name: string; a: string; b: string; i: number };
 export type Inductor = { name: string; a: string; b: string; l: number };
 /** Ideal centre-tapped output transformer: v(n1)−v(p1) = k·(i1−i2) = v(p2)−v(n2), k = Raa/4. */
 export type Winding = { name: string; n1: string; p1: string; n2: string; p2: string; k: number };
@@ -39,6 +41,7 @@ export class Circuit {
   resistors: Resistor[] = [];
   capacitors: Capacitor[] = [];
   inductors: Inductor[] = [];
+  currents: CurrentSource[] = [];
   windings: Winding[] = [];
   transformers: IdealTransformer[] = [];
   tubes: TubeElement[] = [];
@@ -72,6 +75,9 @@ export class Circuit {
   }
   inductor(name: string, a: string, b: string, l: number): void {
     this.inductors.push({ name, a, b, l });
+  }
+  current(name: string, a: string, b: string, i: number): void {
+    this.currents.push({ name, a, b, i });
   }
   winding(name: string, n1: string, p1: string, n2: string, p2: string, k: number): void {
     this.windings.push({ name, n1, p1, n2, p2, k });

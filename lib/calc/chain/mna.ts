@@ -36,6 +36,7 @@ export type Compiled = {
   /** be: backward Euler for the interelectrode capacitances (stiff next to h; the trapezoidal rule would ring) */
   caps: { a: Term; b: Term; c: number; be: boolean }[];
   inds: { a: Term; b: Term; l: number }[];
+  currents: { a: Term; b: Term; i: number }[];
   wind: { n1: Term; p1: Term; n2: Term; p2: Term; k: number; row: number }[];
   /** ideal transformers: one primary-current unknown each, after the winding currents */
   xfmr: { p1: Term; p2: Term; s1: Term; s2: Term; ratio: number; row: number }[];
@@ -75,6 +76,7 @@ export function compile(circuit: Circuit): Compiled {
   });
   const caps = circuit.capacitors.map((c) => ({ a: index(c.a), b: index(c.b), c: c.c, be: c.c < STIFF_CAPACITANCE })).filter((c) => c.a !== c.b);
   const inds = circuit.inductors.map((l) => ({ a: index(l.a), b: index(l.b), l: l.l }));
+  const currents = circuit.currents.map((c) => ({ a: index(c.a), b: index(c.b), i: c.i }));
   const tubes = circuit.tubes.map((t) => ({
     p: index(t.plate),
     g: index(t.grid),
@@ -103,6 +105,7 @@ export function compile(circuit: Circuit): Compiled {
     res,
     caps,
     inds,
+    currents,
     wind,
     xfmr,
     tubes,
@@ -248,6 +251,11 @@ function assembleLinear(cp: Compiled, mode: Mode, fixed: Float64Array, x: Float6
   for (let q = 0; q < cp.res.length; q++) {
     const r = cp.res[q]!;
     stamp(f, jac, n, r.a, r.b, r.g, r.g * (volt(x, fixed, r.a) - volt(x, fixed, r.b)));
+  }
+  for (let q = 0; q < cp.currents.length; q++) {
+    const e = cp.currents[q]!;
+    addF(f, e.a, e.i);
+    addF(f, e.b, -e.i);
   }
   if (mode.kind === 'tran') {
     for (let c = 0; c < cp.caps.length; c++) {
@@ -583,18 +591,33 @@ export function steadyState(
   }
   let s0: State = options.start ? Float64Array.from(options.start.state) : stateFromDc(cp, dc);
   const xStart = options.start ? Float64Array.from(options.start.x) : Float64Array.from(dc.x);
-  const xs = new Float64Array(N * n);
+  let xs: Float64Array = new Float64Array(N * n);
+  let xsPrev: Float64Array | null = null;
+  let cycles = 0;
   const sCur = new Float64Array(S);
   const x = new Float64Array(n);
   let newtonTotal = 0;
 
   const runCycle = (state: State): State => {
+    if (cycles > 0) {
+      const t = xsPrev ?? new Float64Array(N * n);
+      xsPrev = xs;
+      xs = t;
+    }
+    cycles++;
     sCur.set(state);
     const mode: Mode = { kind: 'tran', h, fixed, capV: sCur.subarray(0, nc), capI: sCur.subarray(nc, 2 * nc), indI: sCur.subarray(2 * nc, 2 * nc + nl), indV: sCur.subarray(2 * nc + nl) };
     for (let k = 1; k <= N; k++) {
       fixedAt(k, fixed);
-      // predictor: quadratic extrapolation along the waveform
-      if (k >= 4) {
+      // predictor: the previous cycle at this phase, moved by the change seen at the previous sample; on the
+      // first cycle a quadratic extrapolation along the waveform
+      if (xsPrev && k >= 2) {
+        const o0 = (k - 1) * n;
+        const o1 = (k - 2) * n;
+        for (let i = 0; i < n; i++) x[i] = (xsPrev[o0 + i] as number) + (xs[o1 + i] as number) - (xsPrev[o1 + i] as number);
+      } else if (xsPrev) {
+        for (let i = 0; i < n; i++) x[i] = xsPrev[i] as number;
+      } else if (k >= 4) {
         const o1 = (k - 2) * n;
         const o2 = (k - 3) * n;
         const o3 = (k - 4) * n;
@@ -635,15 +658,15 @@ export function steadyState(
   let sN = runCycle(s0);
   for (let i = 0; i < S; i++) r[i] = (sN[i] as number) - (s0[i] as number);
   let iter = 1;
-  const vScale = 1e-7 * (1 + amplitude) + 1e-9;
+  const vScale = 1e-6 * (1 + amplitude);
   const converged = (res: Float64Array, state: State) => {
     for (let c = 0; c < nc; c++) if (Math.abs(res[c] as number) > vScale + 1e-9 * Math.abs(state[c] as number)) return false;
     let iMax = 1e-15;
     for (let c = 0; c < nc; c++) iMax = Math.max(iMax, Math.abs(state[nc + c] as number));
-    for (let c = 0; c < nc; c++) if (Math.abs(res[nc + c] as number) > 1e-6 * iMax) return false;
+    for (let c = 0; c < nc; c++) if (Math.abs(res[nc + c] as number) > 1e-5 * iMax) return false;
     let lMax = 1e-12;
     for (let l = 0; l < nl; l++) lMax = Math.max(lMax, Math.abs(state[2 * nc + l] as number));
-    for (let l = 0; l < nl; l++) if (Math.abs(res[2 * nc + l] as number) > 1e-7 * lMax) return false;
+    for (let l = 0; l < nl; l++) if (Math.abs(res[2 * nc + l] as number) > 1e-5 * lMax) return false;
     for (let l = 0; l < nl; l++) if (Math.abs(res[2 * nc + nl + l] as number) > vScale) return false;
     return true;
   };

@@ -23,8 +23,9 @@ export type Ports = {
   /** tubes of the stage; a class-AB pair cuts off each half by design */
   tubes: string[];
   cutoffIsLimit: boolean;
-  /** the stage's own load, used when no link takes its main output */
+  /** the stage's own load, used on each of `loadOn` that no link takes */
   ownLoad: { resistance: number; couplingCapacitor: number } | null;
+  loadOn?: string[];
   /** the source resistance given with the stage (used for the first element only) */
   sourceResistance: number;
 };
@@ -165,6 +166,84 @@ function pushPull(c: Circuit, id: string, input: Extract<StageInput, { topology:
   };
 }
 
+function longTailedPair(c: Circuit, id: string, input: Extract<StageInput, { topology: 'long-tailed-pair' }>): Ports {
+  c.fix(node(id, 'bplus'), input.supply);
+  c.resistor(`RA1_${id}`, node(id, 'bplus'), node(id, 'plate1'), input.plateResistors.inverting);
+  c.resistor(`RA2_${id}`, node(id, 'bplus'), node(id, 'plate2'), input.plateResistors.nonInverting);
+  c.addTube(`X1_${id}`, id, input.tube, node(id, 'plate1'), node(id, 'grid1'), node(id, 'cath'), null);
+  c.addTube(`X2_${id}`, id, input.tube, node(id, 'plate2'), node(id, 'grid2'), node(id, 'cath'), null);
+  let tap = node(id, 'cath');
+  const tail = input.tail;
+  if (tail.kind === 'resistor') {
+    if (tail.biasResistor > 0) {
+      c.resistor(`RB_${id}`, node(id, 'cath'), node(id, 'tap'), tail.biasResistor);
+      tap = node(id, 'tap');
+    }
+    if (tail.tailSupply !== 0) {
+      c.fix(node(id, 'vtail'), tail.tailSupply);
+      c.resistor(`RT_${id}`, tap, node(id, 'vtail'), tail.tailResistor);
+    } else c.resistor(`RT_${id}`, tap, '0', tail.tailResistor);
+  } else {
+    c.current(`IT_${id}`, node(id, 'cath'), '0', tail.current);
+  }
+  let ret = tap;
+  if (input.grids.kind === 'dc') {
+    ret = node(id, 'gref');
+    c.fix(ret, input.grids.gridVoltage);
+  }
+  c.resistor(`RG2_${id}`, node(id, 'grid2'), ret, input.gridResistor);
+  c.capacitor(`CG2_${id}`, node(id, 'grid2'), '0', input.secondGridBypass);
+  return {
+    id,
+    topology: input.topology,
+    inputs: { grid: { node: node(id, 'grid1'), ret, rg: input.gridResistor } },
+    outputs: {
+      inverting: { node: node(id, 'plate1'), probe: single(node(id, 'plate1')) },
+      'non-inverting': { node: node(id, 'plate2'), probe: single(node(id, 'plate2')) },
+    },
+    main: 'inverting',
+    power: null,
+    tubes: [`X1_${id}`, `X2_${id}`],
+    cutoffIsLimit: true,
+    ownLoad: input.load ?? null,
+    loadOn: ['inverting', 'non-inverting'],
+    sourceResistance: input.sourceResistance,
+  };
+}
+
+function splitLoad(c: Circuit, id: string, input: Extract<StageInput, { topology: 'split-load' }>): Ports {
+  c.fix(node(id, 'bplus'), input.supply);
+  c.resistor(`RA_${id}`, node(id, 'bplus'), node(id, 'plate'), input.plateResistor);
+  c.addTube(`X_${id}`, id, input.tube, node(id, 'plate'), node(id, 'grid'), node(id, 'cath'), null);
+  let tap = node(id, 'cath');
+  if (input.biasResistor > 0) {
+    c.resistor(`RB_${id}`, node(id, 'cath'), node(id, 'tap'), input.biasResistor);
+    tap = node(id, 'tap');
+  }
+  c.resistor(`RK_${id}`, tap, '0', input.cathodeResistor);
+  let ret = tap;
+  if (input.bias.kind === 'dc-coupled') {
+    ret = node(id, 'gret');
+    c.fix(ret, input.bias.gridVoltage);
+  }
+  return {
+    id,
+    topology: input.topology,
+    inputs: { grid: { node: node(id, 'grid'), ret, rg: input.gridResistor } },
+    outputs: {
+      plate: { node: node(id, 'plate'), probe: single(node(id, 'plate')) },
+      cathode: { node: node(id, 'cath'), probe: single(node(id, 'cath')) },
+    },
+    main: 'plate',
+    power: null,
+    tubes: [`X_${id}`],
+    cutoffIsLimit: true,
+    ownLoad: input.load ?? null,
+    loadOn: ['plate', 'cathode'],
+    sourceResistance: input.sourceResistance,
+  };
+}
+
 /** Fraction of the track below the wiper: linear, or the usual audio (log) law, about 10 % at half rotation. */
 export function volumeFraction(v: VolumeControlInput): number {
   const s = Math.min(1, Math.max(0, v.setting));
@@ -234,6 +313,8 @@ const builders: Record<string, StageBuilder> = {
   'cathode-follower': cathodeFollower,
   'single-ended-output': singleEnded,
   'push-pull-output': pushPull,
+  'long-tailed-pair': longTailedPair,
+  'split-load': splitLoad,
   'volume-control': volumeControl,
   'rc-network': rcNetwork,
 };
@@ -348,11 +429,13 @@ export function buildChain(chain: ChainInput): BuiltChain {
   }
   // own loads where nothing else is connected
   for (const p of ports) {
-    if (p.ownLoad && !linkedOutputs.has(`${p.id}/${p.main}`)) {
-      const o = p.outputs[p.main]!;
-      c.capacitor(`CL_${p.id}`, o.node, `${p.id}.load`, p.ownLoad.couplingCapacitor);
-      c.resistor(`RL_${p.id}`, `${p.id}.load`, '0', p.ownLoad.resistance);
-    }
+    if (!p.ownLoad) continue;
+    (p.loadOn ?? [p.main]).forEach((name, k) => {
+      if (linkedOutputs.has(`${p.id}/${name}`)) return;
+      const o = p.outputs[name]!;
+      c.capacitor(`CL${k}_${p.id}`, o.node, `${p.id}.load${k}`, p.ownLoad!.couplingCapacitor);
+      c.resistor(`RL${k}_${p.id}`, `${p.id}.load${k}`, '0', p.ownLoad!.resistance);
+    });
   }
   if (chain.feedback) applyFeedback(c, ports, chain.feedback);
   const last = ports[ports.length - 1]!;

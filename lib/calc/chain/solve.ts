@@ -31,7 +31,7 @@ export type ChainStageLevels = {
 
 export type ResponseRow = { frequency: number; magnitudeDb: number; phaseDeg: number };
 
-export type ChainResult = {
+export type ChainAnalysis = {
   input: { amplitude: number; frequency: number };
   stages: ChainStageLevels[];
   output: { stage: string; name: string; amplitude: number; thdPercent: number; gain: number; gainDb: number; power: number | null };
@@ -255,7 +255,7 @@ export function passiveResponse(p: { id: string } & PassiveInput, frequencies = 
 /**
  * The chain solved end to end at the input level, with the response, the level sweep and the clip point.
  */
-export function analyzeChain(chain: ChainInput, options: ChainOptions = {}): ChainResult {
+export function analyzeChain(chain: ChainInput, options: ChainOptions = {}): ChainAnalysis {
   // global feedback: polarity resolved (and positive feedback caught) before the loop is closed
   const plan = chain.feedback ? planFeedback(chain) : null;
   const p = plan ? plan.prepared : prepareChain(chain);
