@@ -5,6 +5,11 @@
 // and carries the current of its own stages plus everything downstream. Stages draw their idle plate + screen
 // current; each stage is re-analysed at its node's voltage and node voltages ↔ stage currents are iterated
 // (damped fixed point) until no node moves by more than `tolerance` (0.01 V by default).
+//
+// Signal levels come from the chain solved end to end at the solved node voltages (chain/solve.ts: every stage
+// driven by the previous stage's actual waveform and loaded by the next), never from a product of gains.
+import { analyzeChain, type ChainAnalysis } from './chain/solve';
+import type { ChainLink } from './chain/input';
 import { CalcError } from './errors';
 import { analyzeStage } from './index';
 import type { HeadroomLimit, StageAnalysis } from './types';
@@ -35,7 +40,17 @@ export type ChainStage = {
   heater?: ChainHeater;
 };
 
-export type ChainOptions = { inputRms?: number; tolerance?: number; maxIterations?: number };
+export type ChainOptions = {
+  inputRms?: number;
+  tolerance?: number;
+  maxIterations?: number;
+  /** how the stages are joined (stage ids as strings); default: capacitor coupling between consecutive stages */
+  links?: ChainLink[] | null;
+  /** run the level sweep of the end-to-end solution (default true) */
+  sweep?: boolean;
+  /** signal frequency of the end-to-end solution (default 1 kHz) */
+  frequency?: number;
+};
 
 export type ChainStageResult = {
   stageId: number;
@@ -117,11 +132,35 @@ export type ChainResult = {
   heaters: HeaterTotal[];
   unassignedHeaters: { stageId: number; designation: string; voltage: number | null; current: number | null }[];
   warnings: string[];
+  /** the chain solved end to end at the solved supply (levels, clipping, response, level sweep) */
+  endToEnd: ChainAnalysis | null;
+  /** why there is no end-to-end solution (a stage without inputs, a link that does not fit) */
+  endToEndError: { code: string; message: string } | null;
+  /** the links used (the project's, or the default capacitor coupling) */
+  links: ChainLink[];
 };
+
+/** Default links: each stage's main output to the next stage's grid (both grids of a push-pull pair after a splitter). */
+export function defaultChainLinks(stages: Array<{ id: number | string; input: StageInput | null }>): ChainLink[] {
+  const links: ChainLink[] = [];
+  for (let i = 1; i < stages.length; i++) {
+    const from = stages[i - 1]!;
+    const to = stages[i]!;
+    const capacitance = (from.input && 'load' in from.input && from.input.load?.couplingCapacitor) || 100e-9;
+    const coupling = { kind: 'capacitor' as const, capacitance };
+    const fromTop = from.input?.topology;
+    if (to.input?.topology === 'push-pull-output' && (fromTop === 'long-tailed-pair' || fromTop === 'split-load')) {
+      const [a, b] = fromTop === 'long-tailed-pair' ? ['non-inverting', 'inverting'] : ['cathode', 'plate'];
+      links.push({ from: String(from.id), output: a, to: String(to.id), input: 'grid1', coupling });
+      links.push({ from: String(from.id), output: b, to: String(to.id), input: 'grid2', coupling });
+    } else links.push({ from: String(from.id), to: String(to.id), coupling });
+  }
+  return links;
+}
 
 /** Idle current a stage takes from its B+ node. */
 export function stageSupplyCurrent(input: StageInput, analysis: StageAnalysis): number {
-  const tubes = input.topology === 'push-pull-output' ? analysis.perTube : [analysis.operatingPoint];
+  const tubes = input.topology === 'push-pull-output' || input.topology === 'long-tailed-pair' ? analysis.perTube : [analysis.operatingPoint];
   const list = tubes.length ? tubes : [analysis.operatingPoint];
   let sum = 0;
   for (const op of list) sum += op.plateCurrent + (op.screenCurrent ?? 0);
@@ -179,7 +218,8 @@ const near = (a: number, b: number, rel = 0.05) => Math.abs(a - b) <= rel * Math
 export function heaterShare(h: ChainHeater, topology: string, supplyVoltage: number): number | null {
   if (!h.voltage || !h.current) return null;
   const sections = Math.max(1, h.sections ?? 1);
-  const tubes = topology === 'push-pull-output' ? 2 : 1;
+  // a long-tailed pair uses both sections of its envelope
+  const tubes = topology === 'push-pull-output' || topology === 'long-tailed-pair' ? 2 : 1;
   let current: number | null = null;
   if (near(h.voltage, supplyVoltage)) current = h.current;
   else if (sections >= 2 && near(h.voltage, 2 * supplyVoltage)) current = 2 * h.current;
@@ -293,18 +333,41 @@ export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, option
     }
   }
 
-  // Signal chain: input rms × cumulative gain; each stage's headroom gives the chain input at which it clips.
+  // Signal chain, end to end at the solved node voltages: levels, clipping and the clip point come from the
+  // waveform each stage really receives; no level after a clipping stage is a linear projection.
+  const links = options.links && options.links.length ? options.links : defaultChainLinks(stages);
+  let endToEnd: ChainAnalysis | null = null;
+  let endToEndError: { code: string; message: string } | null = null;
+  const missing = stages.find((s, i) => !s.input || analyses[i]?.error);
+  if (!stages.length) endToEndError = { code: 'invalid-input', message: 'The project has no stages.' };
+  else if (missing) endToEndError = { code: 'invalid-input', message: `${missing.name} has no usable inputs, so the chain cannot be solved end to end.` };
+  else {
+    try {
+      endToEnd = analyzeChain(
+        {
+          input: { amplitude: inputRms * Math.SQRT2, frequency: options.frequency ?? 1000 },
+          stages: stages.map((s, i) => ({ ...(s.input as StageInput), supply: solvedAt[i] ?? (s.input as StageInput).supply, id: String(s.id) })),
+          links,
+        },
+        { sweep: options.sweep ?? true },
+      );
+    } catch (err) {
+      endToEndError = calcErrorOf(err);
+    }
+  }
+  if (endToEndError) warnings.push(`Signal levels are not shown: ${endToEndError.message}`);
+  const e2e = new Map((endToEnd?.stages ?? []).map((x) => [x.id, x]));
   const results: ChainStageResult[] = [];
   let cumulative: number | null = 1;
   for (let i = 0; i < stages.length; i++) {
     const s = stages[i]!;
     const { analysis, error } = analyses[i]!;
-    const before: number | null = cumulative;
     const gain = analysis ? analysis.smallSignal.gain : null;
-    cumulative = before !== null && gain !== null ? before * Math.abs(gain) : null;
+    cumulative = cumulative !== null && gain !== null ? cumulative * Math.abs(gain) : null;
     const maxDrive = analysis ? analysis.largeSignal.headroom.maxDrive : null;
-    const limitedBy = analysis ? analysis.largeSignal.headroom.limitedBy : null;
-    const clipsAt = before !== null && before > 0 && maxDrive !== null && limitedBy !== 'none' ? maxDrive / Math.SQRT2 / before : null;
+    const solved = e2e.get(String(s.id));
+    const main = solved ? Object.values(solved.outputs)[0] : undefined;
+    const isFirstClip = endToEnd?.firstClip?.stage === String(s.id);
     results.push({
       stageId: s.id,
       name: s.name,
@@ -317,20 +380,22 @@ export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, option
       gain,
       gainDb: analysis ? analysis.smallSignal.gainDb : null,
       cumulativeGain: cumulative,
-      inputRms: before !== null ? inputRms * before : null,
-      outputRms: cumulative !== null ? inputRms * cumulative : null,
+      inputRms: solved ? solved.inputAmplitude / Math.SQRT2 : null,
+      outputRms: main ? main.amplitude / Math.SQRT2 : null,
       maxDrivePeak: maxDrive,
-      limitedBy,
-      clipsAtChainInputRms: clipsAt,
-      clipping: clipsAt !== null && clipsAt < inputRms,
+      limitedBy: solved ? (solved.clipped ? solved.limitedBy : isFirstClip ? (endToEnd!.firstClip!.limitedBy as HeadroomLimit) : 'none') : analysis ? analysis.largeSignal.headroom.limitedBy : null,
+      clipsAtChainInputRms: isFirstClip ? endToEnd!.firstClip!.inputAmplitude / Math.SQRT2 : null,
+      clipping: solved?.clipped ?? false,
       worstRating: analysis ? worstRating(analysis) : null,
       error,
     });
   }
-  const clipping = results.filter((r) => r.clipsAtChainInputRms !== null);
-  const first = clipping.reduce<ChainStageResult | null>((m, r) => (m === null || r.clipsAtChainInputRms! < m.clipsAtChainInputRms! ? r : m), null);
-  const totalGain = stages.length && cumulative !== null ? cumulative : null;
-  if (first && first.clipsAtChainInputRms! < inputRms) warnings.push(`${first.name} clips at this input level (it clips from ${(first.clipsAtChainInputRms! * 1000).toPrecision(3)} mV rms).`);
+  const first = endToEnd?.firstClip ? results.find((r) => String(r.stageId) === endToEnd!.firstClip!.stage) ?? null : null;
+  // whole-chain small-signal gain with every stage loaded by the next (the response at 1 kHz)
+  const at1k = endToEnd?.response.reduce((best, r) => (Math.abs(Math.log(r.frequency / 1000)) < Math.abs(Math.log(best.frequency / 1000)) ? r : best));
+  const totalGain = at1k ? Math.pow(10, at1k.magnitudeDb / 20) : null;
+  const clippedNow = results.find((r) => r.clipping);
+  if (clippedNow) warnings.push(`${clippedNow.name} clips at this input level (${LIMIT_TEXT[clippedNow.limitedBy ?? 'none']}); the levels after it are those of the clipped waveform.`);
 
   // Heater totals per heater supply.
   const heaterSupplies = supplyIn.heaters ?? [];
@@ -364,12 +429,22 @@ export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, option
     stages: results,
     totalGain,
     totalGainDb: totalGain !== null && totalGain > 0 ? 20 * Math.log10(totalGain) : null,
-    outputRms: totalGain !== null ? inputRms * totalGain : null,
-    firstClip: first ? { stageId: first.stageId, name: first.name, chainInputRms: first.clipsAtChainInputRms!, limitedBy: first.limitedBy! } : null,
+    outputRms: endToEnd ? endToEnd.output.amplitude / Math.SQRT2 : null,
+    firstClip: first && endToEnd?.firstClip ? { stageId: first.stageId, name: first.name, chainInputRms: endToEnd.firstClip.inputAmplitude / Math.SQRT2, limitedBy: endToEnd.firstClip.limitedBy as HeadroomLimit } : null,
     supply,
     supplyError,
     heaters,
     unassignedHeaters,
     warnings,
+    endToEnd,
+    endToEndError,
+    links,
   };
 }
+
+const LIMIT_TEXT: Record<HeadroomLimit, string> = {
+  'grid-conduction': 'grid conduction',
+  cutoff: 'cutoff',
+  'plate-saturation': 'plate saturation',
+  none: 'no limit',
+};

@@ -7,6 +7,8 @@ export const TOPOLOGY_LABELS: Record<string, string> = {
   'pentode-amplifier': 'Pentode amplifier',
   'single-ended-output': 'Single-ended output',
   'push-pull-output': 'Push-pull output',
+  'long-tailed-pair': 'Long-tailed pair',
+  'split-load': 'Split-load splitter',
 };
 
 const FIELDS: Record<string, { label: string; unit: string }> = {
@@ -32,8 +34,14 @@ const FIELDS: Record<string, { label: string; unit: string }> = {
   frequency: { label: 'Drive frequency', unit: 'Hz' },
   class: { label: 'Class', unit: '' },
   kind: { label: 'Kind', unit: '' },
+  inverting: { label: 'Plate resistor, inverting', unit: 'Ω' },
+  nonInverting: { label: 'Plate resistor, non-inverting', unit: 'Ω' },
+  tailResistor: { label: 'Tail resistor', unit: 'Ω' },
+  tailSupply: { label: 'Tail return voltage', unit: 'V' },
+  current: { label: 'Tail current', unit: 'A' },
+  secondGridBypass: { label: 'Grid 2 bypass', unit: 'F' },
 };
-const GROUP: Record<string, string> = { bias: 'Bias', screen: 'Screen', load: 'Load', drive: 'Drive' };
+const GROUP: Record<string, string> = { bias: 'Bias', screen: 'Screen', load: 'Load', drive: 'Drive', tail: 'Tail', grids: 'Grids' };
 
 export type InputRow = { path: string; label: string; value: string };
 

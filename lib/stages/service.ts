@@ -67,6 +67,8 @@ const TOPOLOGY_WORDS: Record<string, string> = {
   'pentode-amplifier': 'pentode amplifier',
   'single-ended-output': 'single-ended output stage',
   'push-pull-output': 'push-pull output stage',
+  'long-tailed-pair': 'long-tailed pair',
+  'split-load': 'split-load splitter',
 };
 
 /**
