@@ -1,7 +1,37 @@
 // The remaining working screens, each checked for its main content and photographed in both themes
-// (reports/screenshots/screen-*.png). Runs after the review loop, so a decided revision and its mail exist.
+// (reports/screenshots/screen-*.png). The spec makes its own decided revision, bench check and decision mail
+// through the API first, so it does not depend on what other specs leave behind.
 import { expect, test, type Page } from '@playwright/test';
-import { shot, signIn } from './support';
+import { apiAs, okJson, shot, signIn } from './support';
+
+const PROJECT = `Screens check ${Date.now()}`;
+
+test.beforeAll(async () => {
+  test.setTimeout(90_000);
+  const designer = await apiAs('designer');
+  const { tubes } = await okJson<{ tubes: { id: number; designation: string }[] }>(await designer.get('/api/tubes/options'));
+  const tubeId = tubes.find((t) => t.designation === '12AX7')!.id;
+  const { project } = await okJson<{ project: { id: number } }>(await designer.post('/api/projects', { data: { name: PROJECT } }));
+  const { stage } = await okJson<{ stage: { id: number } }>(
+    await designer.post(`/api/projects/${project.id}/stages`, {
+      data: { name: 'V1', topology: 'common-cathode', tubeId, supply: 330, plateResistor: 100000, gridResistor: 1000000, bias: { kind: 'cathode', cathodeResistor: 1500, cathodeBypass: 0.000022 } },
+    }),
+  );
+  const technician = await apiAs('technician');
+  await okJson(await technician.post(`/api/stages/${stage.id}/bench-checks`, { data: { supplyVoltage: 330, plateVoltage: 221, cathodeVoltage: 1.6, tubeSerial: 'SCR-01' } }));
+  const { revision } = await okJson<{ revision: { id: number } }>(await designer.post(`/api/projects/${project.id}/revisions`, { data: { note: 'For the screens check.' } }));
+  const reviewer = await apiAs('reviewer');
+  await okJson(await reviewer.post(`/api/revisions/${revision.id}/decision`, { data: { decision: 'approve', comment: 'Fine.' } }));
+  // the decision mail is delivered by the outbox; wait until it is sent
+  const admin = await apiAs('admin');
+  await expect
+    .poll(async () => {
+      const { mails } = await okJson<{ mails: { subject: string; status: string }[] }>(await admin.get('/api/admin/outbox'));
+      return mails.find((m) => m.subject.includes(PROJECT))?.status ?? 'missing';
+    }, { timeout: 45_000, intervals: [500] })
+    .toBe('sent');
+  await Promise.all([designer, technician, reviewer, admin].map((c) => c.dispose()));
+});
 
 async function bothThemes(page: Page, name: string) {
   await page.screenshot(shot(`screen-${name}-light`));

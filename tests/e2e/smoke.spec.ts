@@ -1,5 +1,5 @@
-import { expect, request as playwrightRequest, test, type APIRequestContext } from '@playwright/test';
-import { DEMO_PASSWORD } from './support';
+import { expect, test, type APIRequestContext } from '@playwright/test';
+import { apiAs } from './support';
 
 // Production smoke: every GET route and page, with each documented query parameter, as each role and signed out.
 // Run against `next start` of the production build (npm test starts it and also scans its log for unhandled
@@ -7,20 +7,8 @@ import { DEMO_PASSWORD } from './support';
 
 type Role = 'anonymous' | 'admin' | 'designer' | 'reviewer' | 'technician';
 const ROLES: Role[] = ['anonymous', 'admin', 'designer', 'reviewer', 'technician'];
-const baseURL = `http://localhost:${process.env.E2E_PORT ?? 3100}`;
 
-async function session(role: Role): Promise<APIRequestContext> {
-  const ctx = await playwrightRequest.newContext({ baseURL, maxRedirects: 0 });
-  if (role === 'anonymous') return ctx;
-  const { csrfToken } = (await (await ctx.get('/api/auth/csrf')).json()) as { csrfToken: string };
-  const res = await ctx.post('/api/auth/callback/credentials', {
-    form: { csrfToken, email: `${role}@anodyne.test`, password: DEMO_PASSWORD, json: 'true' },
-  });
-  expect(res.status(), `sign-in as ${role}`).toBeLessThan(400);
-  const me = await ctx.get('/api/me');
-  expect(me.status(), `session of ${role}`).toBe(200);
-  return ctx;
-}
+const session = (role: Role): Promise<APIRequestContext> => apiAs(role);
 
 async function json<T>(ctx: APIRequestContext, url: string): Promise<T> {
   const res = await ctx.get(url);
