@@ -14,6 +14,8 @@ import { CalcError } from './errors';
 import { analyzeStage } from './index';
 import type { HeadroomLimit, StageAnalysis } from './types';
 import type { StageInput } from './input';
+import { solveChainOnCircuit } from './supply/chain-supply';
+import type { SupplyCircuit, SupplyResult } from './supply/types';
 
 export type ChainSupplyNode = { key: string; name: string; droppingResistor: number; filterCapacitor: number };
 export type ChainSupply = {
@@ -21,6 +23,8 @@ export type ChainSupply = {
   sourceResistance?: number;
   nodes?: ChainSupplyNode[];
   heaters?: { key: string; name: string; voltage: number }[];
+  /** the supply as a circuit (mains winding to the last node); when given, the ladder above is not used */
+  circuit?: SupplyCircuit | null;
 };
 
 export type ChainHeater = { voltage?: number; current?: number; sections?: number; designation?: string };
@@ -109,6 +113,8 @@ export type ChainSupplyResult = {
   converged: boolean;
   /** largest node change in the last iteration, V */
   residual: number;
+  /** the full supply-circuit solution (ripple, sag, ratings, waveforms) when the project has a circuit */
+  circuit?: SupplyResult;
 };
 
 export type HeaterTotal = {
@@ -227,6 +233,7 @@ export function heaterShare(h: ChainHeater, topology: string, supplyVoltage: num
 }
 
 export function solveChain(stagesIn: ChainStage[], supplyIn: ChainSupply, options: ChainOptions = {}): ChainResult {
+  if (supplyIn.circuit) return solveChainOnCircuit(stagesIn, supplyIn.circuit, supplyIn, options, solveChain);
   const inputRms = options.inputRms ?? 0.1;
   const tolerance = options.tolerance ?? 0.01;
   const maxIterations = options.maxIterations ?? 80;

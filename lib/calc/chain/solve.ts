@@ -297,4 +297,6 @@ export function analyzeChain(chain: ChainInput, options: ChainOptions = {}): Cha
 }
 
 export { dbv };
+/** The same shape under its first name. */
+export type ChainResult = ChainAnalysis;
 export { probeDc };
