@@ -18,7 +18,7 @@ function opt(name: string, fallback: string): string {
 const BASE = opt('base', process.env.FUZZ_BASE ?? process.env.BASE_URL ?? 'http://127.0.0.1:3000').replace(/\/$/, '');
 const REQUESTS = Number(opt('requests', '10000'));
 const MAX_SECONDS = Number(opt('max-seconds', '300'));
-const CONCURRENCY = Number(opt('concurrency', '4'));
+const CONCURRENCY = Number(opt('concurrency', '8'));
 const SEED = Number(opt('seed', String(Date.now() % 1_000_000)));
 const MAX_BODY = Number(opt('max-body', String(12 * 1024 * 1024)));
 const REPORT = opt('report', '');
@@ -118,10 +118,9 @@ const HOSTILE_TEXT = [`a${NUL}b`, NUL, `x${LONE_HIGH}`, `${LONE_LOW}y`, LONE_HIG
 const HOSTILE_NUMBERS: unknown[] = [1e308, -1e308, Number.MAX_SAFE_INTEGER + 2, -1, 0, 2147483648, 1e-320, '1e308', 'NaN', 'Infinity', '-Infinity', '0x10', ' 1', '+1', '1e3', '4k7', '22u', '2M2', 'abc', '', true, null, [], {}, [1, 2], { value: 1 }];
 const ANY_JUNK: unknown[] = [...HOSTILE_NUMBERS, ...HOSTILE_TEXT.slice(0, 6), { __proto__: { admin: true } }, { constructor: { prototype: { x: 1 } } }];
 
-function deep(n: number): unknown {
-  let v: unknown = 1;
-  for (let i = 0; i < n; i++) v = chance(0.5) ? [v] : { a: v };
-  return v;
+/** JSON text nested n levels deep, written as text (a client-side stringify would overflow first). */
+function deepJson(n: number): string {
+  return chance(0.5) ? `${'['.repeat(n)}1${']'.repeat(n)}` : `${'{"a":'.repeat(n)}1${'}'.repeat(n)}`;
 }
 
 // ---------- valid base bodies ----------
@@ -357,7 +356,7 @@ function buildRequest(): Req {
       if (ct) headers['content-type'] = ct;
       describe = `wrong content type (${ct || 'none'})`;
     } else if (r < 0.95) {
-      body = JSON.stringify(chance(0.5) ? deep(5000) : { ...(base as object), filler: Array.from({ length: 50_000 }, (_, i) => i) });
+      body = chance(0.5) ? deepJson(pick([100, 5000, 100_000])) : JSON.stringify({ ...(base as object), filler: Array.from({ length: 50_000 }, (_, i) => i) });
       headers['content-type'] = 'application/json';
       describe = 'deeply nested / large JSON';
     } else if (r < 0.985) {
@@ -385,7 +384,7 @@ interface Finding {
   answer: string;
 }
 const statusCounts = new Map<string, number>();
-const perRoute = new Map<string, { total: number; bad: number }>();
+const perRoute = new Map<string, { total: number; bad: number; ms: number; maxMs: number }>();
 const findings: Finding[] = [];
 
 function excerpt(body: Req['body']): string {
@@ -397,7 +396,8 @@ function excerpt(body: Req['body']): string {
 
 async function send(req: Req): Promise<void> {
   const key = `${req.method} ${req.route.path}`;
-  const entry = perRoute.get(key) ?? { total: 0, bad: 0 };
+  const entry = perRoute.get(key) ?? { total: 0, bad: 0, ms: 0, maxMs: 0 };
+  const started = performance.now();
   entry.total += 1;
   perRoute.set(key, entry);
   let status: number | string;
@@ -411,6 +411,9 @@ async function send(req: Req): Promise<void> {
     status = err instanceof Error && err.name === 'TimeoutError' ? 'timeout' : 'connection-error';
     answer = err instanceof Error ? `${err.name}: ${err.message}` : String(err);
   }
+  const took = performance.now() - started;
+  entry.ms += took;
+  entry.maxMs = Math.max(entry.maxMs, took);
   const bucket = typeof status === 'number' ? String(status) : status;
   statusCounts.set(bucket, (statusCounts.get(bucket) ?? 0) + 1);
   if (typeof status !== 'number' || status >= 500) {
@@ -439,6 +442,8 @@ async function main(): Promise<void> {
   console.log(`\n[fuzz] ${sent} requests in ${seconds.toFixed(1)} s (${(sent / seconds).toFixed(0)}/s)`);
   console.log('[fuzz] status counts:');
   for (const [s, n] of [...statusCounts.entries()].sort()) console.log(`  ${s.padEnd(16)} ${n}`);
+  console.log('[fuzz] slowest routes (mean / max ms):');
+  for (const [k, v] of [...perRoute.entries()].sort((a, b) => b[1].ms / b[1].total - a[1].ms / a[1].total).slice(0, 8)) console.log(`  ${k.padEnd(52)} ${(v.ms / v.total).toFixed(0).padStart(6)} / ${v.maxMs.toFixed(0)}  (${v.total})`);
   const badRoutes = [...perRoute.entries()].filter(([, v]) => v.bad > 0);
   if (findings.length) {
     console.log(`\n[fuzz] ${findings.length} answers of 5xx or no answer, on ${badRoutes.length} routes:`);

@@ -52,7 +52,7 @@ if bash scripts/build-if-needed.sh; then
   E2E_REUSE_SERVER=1 PLAYWRIGHT_JSON_OUTPUT_NAME=reports/playwright.json node node_modules/@playwright/test/cli.js test --reporter=list,json
   pw_rc=$?
   # short fuzz after the browser specs (it leaves hostile data behind), on the same server
-  node node_modules/tsx/dist/cli.mjs scripts/fuzz.ts --base "http://127.0.0.1:$E2E_PORT" --requests "${FUZZ_REQUESTS:-2000}" --max-seconds 60 --seed "${FUZZ_SEED:-$RANDOM}" --max-body $((12 * 1024 * 1024)) --report reports/checks/fuzz.json >reports/fuzz.log 2>&1
+  node node_modules/tsx/dist/cli.mjs scripts/fuzz.ts --base "http://127.0.0.1:$E2E_PORT" --requests "${FUZZ_REQUESTS:-2000}" --max-seconds "${FUZZ_SECONDS:-60}" --seed "${FUZZ_SEED:-$RANDOM}" --max-body $((4 * 1024 * 1024)) --report reports/checks/fuzz.json >reports/fuzz.log 2>&1
   fuzz_rc=$?
   tail -n 40 reports/fuzz.log
   [ $fuzz_rc -eq 0 ] || echo "[test] fuzz found problems: full list in reports/fuzz.log" >&2
