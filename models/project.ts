@@ -1,5 +1,5 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
-import type { ProjectSupplyRecord } from './types';
+import type { ProjectSupplyCircuitRecord, ProjectSupplyRecord } from './types';
 
 export class Project extends Model<InferAttributes<Project>, InferCreationAttributes<Project>> {
   declare id: CreationOptional<number>;
@@ -9,6 +9,7 @@ export class Project extends Model<InferAttributes<Project>, InferCreationAttrib
   declare archived: CreationOptional<boolean>;
   declare ownerId: number | null;
   declare supply: CreationOptional<ProjectSupplyRecord>;
+  declare supplyCircuit: CreationOptional<ProjectSupplyCircuitRecord | null>;
   declare benchTolerances: CreationOptional<Record<string, number>>;
   declare version: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
@@ -24,6 +25,7 @@ export class Project extends Model<InferAttributes<Project>, InferCreationAttrib
         archived: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
         ownerId: { type: DataTypes.INTEGER, allowNull: true },
         supply: { type: DataTypes.JSONB, allowNull: false, defaultValue: {} },
+        supplyCircuit: { type: DataTypes.JSONB, allowNull: true },
         benchTolerances: { type: DataTypes.JSONB, allowNull: false, defaultValue: {} },
         version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
         createdAt: DataTypes.DATE,

@@ -41,4 +41,7 @@ export type ProjectSupplyRecord = {
   heaters?: { key: string; name: string; voltage: number }[];
 };
 
+/** projects.supply_circuit: the supply as a circuit, in SI units (shape: lib/validation/supply.ts) */
+export type ProjectSupplyCircuitRecord = import('../lib/validation/supply').SupplyCircuitBody;
+
 export type MailAttachmentRecord = { filename: string; contentType: string; contentBase64: string };

@@ -2,6 +2,7 @@ import 'server-only';
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { ApiError } from '@/lib/api/errors';
 import type { ChainStage } from '@/lib/calc/chain';
+import { circuitNodes } from '@/lib/calc/supply/ladder';
 import { stageBodySchema, type StageBody } from '@/lib/validation/stage';
 import {
   createProjectSchema,
@@ -12,7 +13,7 @@ import {
   type UpdateProjectInput,
 } from '@/lib/validation/project';
 import { Project, ProjectWatcher, Stage, TubeType, User } from '@/models';
-import type { ProjectSupplyRecord } from '@/models/types';
+import type { ProjectSupplyCircuitRecord, ProjectSupplyRecord } from '@/models/types';
 import type { Role } from '@/models/user';
 import { recordAudit } from '@/lib/db/audit';
 import { sequelize } from '@/lib/db';
@@ -30,6 +31,8 @@ export type ProjectDetail = {
   owner: { id: number; displayName: string } | null;
   watchers: { id: number; displayName: string }[];
   supply: ProjectSupplyRecord;
+  /** the supply as a circuit (null: the resistor ladder in `supply`) */
+  supplyCircuit: ProjectSupplyCircuitRecord | null;
   benchTolerances: Record<string, number>;
   updatedAt: string;
   stages: StageDTO[];
@@ -126,6 +129,7 @@ export async function getProject(id: number, transaction?: Transaction): Promise
     owner: owner ? { id: owner.id, displayName: owner.displayName } : null,
     watchers: watcherUsers.map((u) => ({ id: u.id, displayName: u.displayName })),
     supply: project.supply ?? {},
+    supplyCircuit: project.supplyCircuit ?? null,
     benchTolerances: project.benchTolerances ?? {},
     updatedAt: project.updatedAt.toISOString(),
     stages: await stageDTOs(stages, transaction),
@@ -145,7 +149,7 @@ export async function createProject(actorId: number, raw: CreateProjectInput): P
   return getProject(project.id);
 }
 
-const DESIGN_FIELDS = ['name', 'description', 'supply', 'benchTolerances'] as const;
+const DESIGN_FIELDS = ['name', 'description', 'supply', 'supplyCircuit', 'benchTolerances'] as const;
 
 export async function updateProject(actorId: number, id: number, raw: UpdateProjectInput): Promise<ProjectDetail> {
   const patch = updateProjectSchema.parse(raw);
@@ -168,13 +172,21 @@ export async function updateProject(actorId: number, id: number, raw: UpdateProj
         fields.push(f);
       }
     }
-    if (patch.supply) {
-      const keys = new Set((patch.supply.nodes ?? []).map((n) => n.key));
+    if (patch.supplyCircuit) {
+      // the circuit's nodes are mirrored into the ladder shape, so node pickers and older readers keep working
+      const base = (patch.supply ?? project.supply ?? {}) as ProjectSupplyRecord;
+      const nodes = circuitNodes(patch.supplyCircuit).map(({ key, name, droppingResistor, filterCapacitor }) => ({ key, name, droppingResistor, filterCapacitor }));
+      (changes as Record<string, unknown>).supply = { ...base, rawVoltage: patch.supplyCircuit.secondary.voltage * Math.SQRT2, sourceResistance: patch.supplyCircuit.secondary.resistance, nodes };
+      if (!fields.includes('supply')) fields.push('supply');
+    }
+    const nextSupply = (changes as { supply?: ProjectSupplyRecord }).supply;
+    if (nextSupply) {
+      const keys = new Set((nextSupply.nodes ?? []).map((n) => n.key));
       const orphans = await Stage.findAll({ where: { projectId: id, supplyNode: { [Op.ne]: null } }, attributes: ['name', 'supplyNode'], transaction });
       const lost = orphans.filter((s) => !keys.has(s.supplyNode!));
       if (lost.length) {
         throw new ApiError('unprocessable_entity', `Stages still draw from nodes you removed: ${lost.map((s) => `${s.name} (${s.supplyNode})`).join(', ')}. Move them to another node first.`, {
-          fieldErrors: { 'supply.nodes': ['A node that stages draw from cannot be removed.'] },
+          fieldErrors: { [patch.supplyCircuit ? 'supplyCircuit' : 'supply.nodes']: ['A node that stages draw from cannot be removed.'] },
         });
       }
     }

@@ -3,6 +3,7 @@ import { text } from './text';
 import { idNumber, idText, intCounter } from './ids';
 import { quantity } from './quantity';
 import { stageBodySchema } from './stage';
+import { supplyCircuitSchema } from './supply';
 import { CURVE_KINDS } from '@/lib/report/curve-kinds';
 import { BENCH_QUANTITY_KEYS, type BenchQuantity } from '@/lib/calc/bench';
 
@@ -85,6 +86,8 @@ export const updateProjectSchema = z
     description: description.optional(),
     archived: z.boolean().optional(),
     supply: projectSupplySchema.optional(),
+    /** the supply as a circuit; null returns the project to the resistor ladder */
+    supplyCircuit: supplyCircuitSchema.nullable().optional(),
     benchTolerances: benchTolerancesSchema.optional(),
     watchers: z.array(idNumber()).max(50).optional(),
   })

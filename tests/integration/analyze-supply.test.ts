@@ -11,7 +11,7 @@ describe('POST /api/analyze-supply', () => {
   it('answers per node dc, ripple, the rectifier peak current, the turn-on peak and the ratings', async () => {
     const res = await call(await handler(), { as: 'technician', method: 'POST', body: fixture('class-ab-six-nodes') });
     expect(res.status).toBe(200);
-    const { supply } = await res.json();
+    const { supply } = res.json;
     expect(supply.nodes).toHaveLength(6);
     expect(supply.nodes[0]).toMatchObject({ key: 'B+1', name: 'Output plates' });
     for (const n of supply.nodes) {
@@ -32,7 +32,7 @@ describe('POST /api/analyze-supply', () => {
     const body = { ...fixture('bridge-rc'), sections: [{ kind: 'capacitor', capacitance: '10u' }] };
     const res = await call(await handler(), { as: 'designer', method: 'POST', body });
     expect(res.status).toBe(422);
-    const { error } = await res.json();
+    const { error } = res.json;
     expect(Object.keys(error.fieldErrors)).toContain('sections.0');
   });
 
@@ -40,7 +40,7 @@ describe('POST /api/analyze-supply', () => {
     const body = { ...fixture('vacuum-5ar4-cap'), rectifier: { kind: 'vacuum', type: 'ZZ99' } };
     const res = await call(await handler(), { as: 'designer', method: 'POST', body });
     expect(res.status).toBe(422);
-    const { error } = await res.json();
+    const { error } = res.json;
     expect(error.code).toBe('calc_invalid-input');
     expect(error.message).toMatch(/ZZ99/);
   });

@@ -21,7 +21,7 @@ function streamingRequest(path: string, total: number, headers: Record<string, s
       controller.enqueue(chunk);
     },
   });
-  const req = new NextRequest(new URL(path, 'http://localhost:3100'), { method: 'POST', headers, body, duplex: 'half' } as RequestInit & { duplex: 'half' });
+  const req = new NextRequest(new URL(path, 'http://localhost:3100'), { method: 'POST', headers, body, duplex: 'half' } as ConstructorParameters<typeof NextRequest>[1] & { duplex: 'half' });
   return { req, pulled: () => sent };
 }
 

@@ -37,7 +37,8 @@ describe('cross-site requests', () => {
     it(`${method} /api/${rel}: 403 for a foreign Origin or Sec-Fetch-Site${json ? ', 415 for text/plain' : ''}`, async () => {
       const params = paramsFor(rel);
       const body = method === 'DELETE' ? undefined : {};
-      for (const headers of [{ origin: 'https://attacker.example' }, { origin: 'null' }, { 'sec-fetch-site': 'cross-site' }, { 'sec-fetch-site': 'same-site', origin: 'http://other.localhost:3100' }]) {
+      const foreign: Record<string, string>[] = [{ origin: 'https://attacker.example' }, { origin: 'null' }, { 'sec-fetch-site': 'cross-site' }, { 'sec-fetch-site': 'same-site', origin: 'http://other.localhost:3100' }];
+      for (const headers of foreign) {
         const r = await call(handler, { as: 'admin', method, params, body, headers, path: `/api/${rel}?version=1` });
         expect(r.status, `${JSON.stringify(headers)}: ${JSON.stringify(r.json)}`).toBe(403);
         expect(r.json.error.code).toBe('forbidden');

@@ -6,3 +6,5 @@ export type { SupplyNetlistOptions } from './spice';
 export { SILICON_DIODES, VACUUM_RECTIFIERS, siliconDiode, vacuumRectifier, vacuumPerveance, THERMAL_VOLTAGE_27C } from './rectifiers';
 export type { SiliconDiode, VacuumRectifier } from './rectifiers';
 export type * from './types';
+export { circuitNodes, ladderToCircuit } from './ladder';
+export type { CircuitNode } from './ladder';

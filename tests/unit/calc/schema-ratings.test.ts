@@ -10,7 +10,7 @@ describe('stage schema', () => {
   it('accepts engineering notation and fills defaults', () => {
     const s = stageInputSchema.parse({ ...cc, bias: { kind: 'cathode', cathodeResistor: '1k5', cathodeBypass: '22µF' } });
     expect(s.gridResistor).toBe(1e6);
-    expect(s.bias).toEqual({ kind: 'cathode', cathodeResistor: 1500, cathodeBypass: 22e-6 });
+    expect((s as Extract<typeof s, { topology: 'common-cathode' }>).bias).toEqual({ kind: 'cathode', cathodeResistor: 1500, cathodeBypass: 22e-6 });
     expect(s.drive).toEqual({ amplitude: 0, frequency: 1000 });
     expect(s.derating).toBe(0.7);
     expect(s.sourceResistance).toBe(0);

@@ -10,7 +10,7 @@ export const runtime = 'nodejs';
 export const GET = withUser('projects:read', async (_req, { params }) => {
   const { id } = parseParams(params, idParamSchema);
   const project = await getProject(id);
-  const chain = solveChain(await chainStagesFor(project), project.supply, { inputRms: 0.1 });
+  const chain = solveChain(await chainStagesFor(project), { ...project.supply, circuit: project.supplyCircuit }, { inputRms: 0.1 });
   let pdf: Buffer;
   try {
     pdf = await renderReportPdf(project, { chain });
