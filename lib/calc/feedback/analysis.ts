@@ -71,11 +71,9 @@ function factor(m: number, re: Float64Array, im: Float64Array, perm: Int32Array)
   return true;
 }
 
-/** Solves in place: b (re, im) with the row permutation applied by the caller's construction. */
-function solve(f: Factored, bRe: Float64Array, bIm: Float64Array): void {
+/** Solves in place: b (re, im); `xr`, `xi` are scratch of the same length. */
+function solve(f: Factored, bRe: Float64Array, bIm: Float64Array, xr: Float64Array, xi: Float64Array): void {
   const { n: m, re, im, perm } = f;
-  const xr = new Float64Array(m);
-  const xi = new Float64Array(m);
   for (let i = 0; i < m; i++) {
     xr[i] = bRe[perm[i] as number] as number;
     xi[i] = bIm[perm[i] as number] as number;
@@ -117,6 +115,9 @@ type Loop = {
   a: Term;
   b: Term;
   load: number;
+  /** frequency-independent real part with RBRK replaced by the source branch (row/column n) */
+  base: Float64Array;
+  work: { re: Float64Array; im: Float64Array; perm: Int32Array; v: Float64Array[]; xr: Float64Array; xi: Float64Array; drvIm: Float64Array };
 };
 
 /** Everything the loop analysis reads at one frequency. */
@@ -129,18 +130,16 @@ export type LoopAt = {
   zOpen: Complex;
 };
 
-function systemAt(L: Loop, f: number): LoopAt {
+export function systemAt(L: Loop, f: number): LoopAt {
   const { cp, lin, a, b } = L;
   const n = lin.n;
   const m = n + 1;
-  const re = new Float64Array(m * m);
-  const im = new Float64Array(m * m);
-  for (let i = 0; i < n; i++) for (let k = 0; k < n; k++) re[i * m + k] = lin.g[i * n + k] as number;
+  const { re, im, perm, v, xr, xi, drvIm } = L.work;
+  re.set(L.base);
+  im.fill(0);
+  drvIm.fill(0);
   const w = 2 * Math.PI * f;
-  const drvRe = new Float64Array(m);
-  const drvIm = new Float64Array(m);
-  for (let i = 0; i < n; i++) drvRe[i] = lin.drive[i] as number;
-  const sig = (t: Term) => (t <= -2 ? (cp.fixedSignal[-2 - t] as number) : 0);
+  const fs = cp.fixedSignal;
   const stampB = (ta: Term, tb: Term, y: number) => {
     if (ta >= 0) im[ta * m + ta] = (im[ta * m + ta] as number) + y;
     if (tb >= 0) im[tb * m + tb] = (im[tb * m + tb] as number) + y;
@@ -148,7 +147,8 @@ function systemAt(L: Loop, f: number): LoopAt {
       im[ta * m + tb] = (im[ta * m + tb] as number) - y;
       im[tb * m + ta] = (im[tb * m + ta] as number) - y;
     }
-    const du = sig(ta) - sig(tb);
+    // a capacitor or inductor on a signal source's node drives the network from it
+    const du = (ta <= -2 ? (fs[-2 - ta] as number) : 0) - (tb <= -2 ? (fs[-2 - tb] as number) : 0);
     if (du !== 0) {
       if (ta >= 0) drvIm[ta] = (drvIm[ta] as number) - y * du;
       if (tb >= 0) drvIm[tb] = (drvIm[tb] as number) + y * du;
@@ -156,40 +156,23 @@ function systemAt(L: Loop, f: number): LoopAt {
   };
   for (const c of cp.caps) stampB(c.a, c.b, w * c.c);
   for (const l of cp.inds) stampB(l.a, l.b, -1 / (w * l.l));
-  // take RBRK out, put the source branch in: unknown m−1 is its current from a to b; V(b) − V(a) = vz
-  const g = 1 / BREAK_RESISTANCE;
-  re[a * m + a] = (re[a * m + a] as number) - g;
-  re[b * m + b] = (re[b * m + b] as number) - g;
-  re[a * m + b] = (re[a * m + b] as number) + g;
-  re[b * m + a] = (re[b * m + a] as number) + g;
   const s = n;
-  re[a * m + s] = 1;
-  re[b * m + s] = -1;
-  re[s * m + b] = 1;
-  re[s * m + a] = -1;
-  const perm = new Int32Array(m);
   if (!factor(m, re, im, perm)) throw new CalcError('no-solution', 'The small-signal circuit of the feedback loop is singular.');
   const F: Factored = { n: m, re, im, perm };
   const c = (x: Float64Array, y: Float64Array, i: number): Complex => ({ re: x[i] as number, im: y[i] as number });
-  // 1: series voltage injection
-  const v1r = new Float64Array(m);
-  const v1i = new Float64Array(m);
+  const [v1r, v1i, v2r, v2i, v3r, v3i, v4r, v4i] = v as [Float64Array, Float64Array, Float64Array, Float64Array, Float64Array, Float64Array, Float64Array, Float64Array];
+  for (const x of v) x.fill(0);
+  // 1: series voltage injection; 2: current injection into b; 3: the input signal with the source at 0 V (the
+  // loop closed); 4: a test current into the speaker node (output impedance), loop closed
   v1r[s] = 1;
-  solve(F, v1r, v1i);
-  // 2: current injection into b
-  const v2r = new Float64Array(m);
-  const v2i = new Float64Array(m);
   v2r[b] = 1;
-  solve(F, v2r, v2i);
-  // 3: the input signal, source at 0 V (the loop closed)
-  const v3r = Float64Array.from(drvRe);
-  const v3i = Float64Array.from(drvIm);
-  solve(F, v3r, v3i);
-  // 4: a test current into the speaker node (output impedance), loop closed
-  const v4r = new Float64Array(m);
-  const v4i = new Float64Array(m);
+  for (let i = 0; i < n; i++) v3r[i] = lin.drive[i] as number;
+  v3i.set(drvIm);
   v4r[a] = 1;
-  solve(F, v4r, v4i);
+  solve(F, v1r, v1i, xr, xi);
+  solve(F, v2r, v2i, xr, xi);
+  solve(F, v3r, v3i, xr, xi);
+  solve(F, v4r, v4i, xr, xi);
   const Va1 = c(v1r, v1i, a);
   const Vb1 = c(v1r, v1i, b);
   const tv = neg(div(Va1, Vb1));
@@ -223,14 +206,30 @@ const abs = (x: Complex) => Math.hypot(x.re, x.im);
 const db = (x: number) => 20 * Math.log10(Math.max(x, 1e-30));
 const phaseDeg = (x: Complex) => (Math.atan2(x.im, x.re) * 180) / Math.PI;
 
-function loopOf(p: PreparedChain, lin: Linearised): Loop {
+export function loopOf(p: PreparedChain, lin: Linearised): Loop {
   const fb = p.chain.feedback!;
   const out = p.built.ports.find((x) => x.id === fb.from)!;
   const speaker = out.outputs.speaker!.node;
   const a = p.cp.index(speaker);
   const b = p.cp.index(FEEDBACK_NODES.tap);
   if (a < 0 || b < 0) throw new CalcError('invalid-input', 'Feedback: the speaker terminal is tied to a fixed voltage.');
-  return { cp: p.cp, lin, a, b, load: out.power!.load };
+  const n = lin.n;
+  const m = n + 1;
+  const base = new Float64Array(m * m);
+  for (let i = 0; i < n; i++) for (let k = 0; k < n; k++) base[i * m + k] = lin.g[i * n + k] as number;
+  // take RBRK out, put the source branch in: unknown n is its current from a to b; V(b) − V(a) = vz
+  const g = 1 / BREAK_RESISTANCE;
+  base[a * m + a] = (base[a * m + a] as number) - g;
+  base[b * m + b] = (base[b * m + b] as number) - g;
+  base[a * m + b] = (base[a * m + b] as number) + g;
+  base[b * m + a] = (base[b * m + a] as number) + g;
+  base[a * m + n] = 1;
+  base[b * m + n] = -1;
+  base[n * m + b] = 1;
+  base[n * m + a] = -1;
+  const vec = () => new Float64Array(m);
+  const work = { re: new Float64Array(m * m), im: new Float64Array(m * m), perm: new Int32Array(m), v: Array.from({ length: 8 }, vec), xr: vec(), xi: vec(), drvIm: vec() };
+  return { cp: p.cp, lin, a, b, load: out.power!.load, base, work };
 }
 
 export type FeedbackPlan = {
@@ -246,6 +245,28 @@ export type FeedbackPlan = {
 
 const withFeedback = (chain: ChainInput, fb: FeedbackBuild): ChainInput => ({ ...chain, feedback: fb as FeedbackSpec });
 
+/**
+ * The same prepared circuit with the feedback taken from the other secondary terminal: every ideal transformer of
+ * the output stage changes sign. The operating point is unchanged (the transformer passes no DC; the speaker's
+ * microvolt offset only changes sign), so the solved DC point is kept.
+ */
+function reversedSecondary(p: PreparedChain, from: string, chain: ChainInput): PreparedChain {
+  const names = p.cp.circuit.transformers.map((t) => t.name.endsWith(`_${from}`));
+  const cp: Compiled = { ...p.cp, xfmr: p.cp.xfmr.map((t, i) => (names[i] ? { ...t, ratio: -t.ratio } : t)) };
+  return { ...p, chain, cp };
+}
+
+/**
+ * The loop opened for the figures "without feedback": the break resistor now returns the tap to ground instead of
+ * the speaker (the first stage keeps the loading of Rf and Rsh). The DC point is unchanged (both ends sit at 0 V).
+ */
+export function openLoop(p: PreparedChain): PreparedChain {
+  const k = p.cp.circuit.resistors.findIndex((r) => r.name === 'RBRK_FB');
+  const tap = p.cp.index(FEEDBACK_NODES.tap);
+  const res = p.cp.res.map((r, i) => (i === k ? { a: -1 as Term, b: tap, g: r.g } : r));
+  return { ...p, cp: { ...p.cp, res } };
+}
+
 /** Resolves 'auto' polarity and detects positive feedback before the chain is solved with the loop closed. */
 export function planFeedback(chain: ChainInput): FeedbackPlan {
   const fb = chain.feedback!;
@@ -255,14 +276,12 @@ export function planFeedback(chain: ChainInput): FeedbackPlan {
   const positive = t.re < 0;
   if (!positive) return { chain: p1.chain, prepared: p1, polarity: first.polarity as 'normal' | 'reversed', polarityChosen: fb.polarity === 'auto', positiveFeedback: false, positive: null };
   if (fb.polarity === 'auto') {
-    const other: FeedbackBuild = { ...fb, polarity: first.polarity === 'normal' ? 'reversed' : 'normal' };
-    const p2 = prepareChain(withFeedback(chain, other));
-    return { chain: p2.chain, prepared: p2, polarity: other.polarity as 'normal' | 'reversed', polarityChosen: true, positiveFeedback: false, positive: null };
+    const other = first.polarity === 'normal' ? 'reversed' : 'normal';
+    const p2 = reversedSecondary(p1, fb.from, withFeedback(chain, { ...fb, polarity: other }));
+    return { chain: p2.chain, prepared: p2, polarity: other, polarityChosen: true, positiveFeedback: false, positive: null };
   }
   // as entered it is positive feedback: the main analysis runs with the loop open, and says so
-  const open: FeedbackBuild = { ...first, loop: 'open' };
-  const p3 = prepareChain(withFeedback(chain, open));
-  return { chain: p3.chain, prepared: p3, polarity: first.polarity as 'normal' | 'reversed', polarityChosen: false, positiveFeedback: true, positive: p1 };
+  return { chain: p1.chain, prepared: openLoop(p1), polarity: first.polarity as 'normal' | 'reversed', polarityChosen: false, positiveFeedback: true, positive: p1 };
 }
 
 export type ResponseRow = { frequency: number; magnitudeDb: number; phaseDeg: number };
@@ -367,8 +386,7 @@ export function analyzeFeedback(plan: FeedbackPlan, main: LevelPoint | null, opt
   // time domain: closed loop (the main solve) and open loop at the same output level
   const amplitude = chain.input.amplitude;
   const frequency = chain.input.frequency;
-  const openChain = withFeedback(chain, { ...fb, loop: 'open' });
-  const pOpen = plan.positiveFeedback ? plan.prepared : prepareChain(openChain);
+  const pOpen = plan.positiveFeedback ? plan.prepared : openLoop(plan.prepared);
   let closed: FeedbackResult['distortion']['closed'] = null;
   let target = 0;
   let power: number | null = null;

@@ -60,18 +60,36 @@ export function unwrapFrom(values: Complex[], ref: number): number[] {
 }
 
 /**
- * Log-frequency bisection of a crossing of `g` (continuous, evaluated exactly) between two samples, to 1e-6 relative.
+ * A crossing of `g` (continuous, evaluated exactly) between two samples, on log frequency: Illinois regula falsi
+ * (superlinear, a handful of evaluations), to 1e-6 relative in frequency.
  */
 function refine(g: (f: number) => number, f1: number, f2: number): number {
-  let a = f1;
-  let b = f2;
-  const ga = g(a);
-  for (let i = 0; i < 50 && b / a > 1 + 1e-7; i++) {
-    const m = Math.sqrt(a * b);
-    if (g(m) * ga > 0) a = m;
-    else b = m;
+  let a = Math.log(f1);
+  let b = Math.log(f2);
+  let ga = g(f1);
+  let gb = g(f2);
+  if (ga === 0) return f1;
+  if (gb === 0 || ga * gb > 0) return f2;
+  let side = 0;
+  let x = b;
+  for (let i = 0; i < 40 && b - a > 1e-6; i++) {
+    x = (a * gb - b * ga) / (gb - ga);
+    const gx = g(Math.exp(x));
+    if (gx === 0) return Math.exp(x);
+    if (gx * gb > 0) {
+      b = x;
+      gb = gx;
+      if (side === -1) ga /= 2;
+      side = -1;
+    } else {
+      a = x;
+      ga = gx;
+      if (side === 1) gb /= 2;
+      side = 1;
+    }
+    if (Math.abs(gx) < 1e-9) break;
   }
-  return Math.sqrt(a * b);
+  return Math.exp(x);
 }
 
 /**
