@@ -34,14 +34,15 @@ export function analyzeLongTailedPair(input: LongTailedPairInput, options?: Anal
   if (tail.kind === 'current-source' && grids.kind === 'bias-tap') {
     throw new CalcError('invalid-input', 'A current-source tail has no bias tap: give the grids a DC potential.');
   }
-  if (grids.kind === 'bias-tap' && !(rb > 0)) {
+  if (grids.kind === 'bias-tap' && !(rb > 1e-3)) {
     throw new CalcError('invalid-input', 'The grids return to the bias tap, so a bias resistor above the tail is needed.');
   }
   const ra1 = input.plateResistors.inverting;
   const ra2 = input.plateResistors.nonInverting;
   const rg = input.gridResistor;
   const load = input.load;
-  const hasTap = tail.kind === 'resistor' && rb > 0;
+  // a bias resistor below a milliohm is none (its conductance would swamp the node equations)
+  const hasTap = tail.kind === 'resistor' && rb > 1e-3;
   const P1 = 0;
   const P2 = 1;
   const K = 2;
@@ -241,19 +242,20 @@ export function analyzeLongTailedPair(input: LongTailedPairInput, options?: Anal
         const s = solve(i === 0 ? a : -a);
         return 0.15 * (vak0[i] as number) - (voltageOf(circuit, s, i === 0 ? P1 : P2) - voltageOf(circuit, s, K));
       };
+      // cut-off first: it usually comes first in a pair, and every later search stops at the nearest limit so far
       const criteria: Array<[HeadroomLimit, (a: number) => number]> = [
-        ['grid-conduction', (a) => grid(0, a)],
-        ['grid-conduction', (a) => grid(1, a)],
         ['cutoff', (a) => cut(0, a)],
         ['cutoff', (a) => cut(1, a)],
+        ['grid-conduction', (a) => grid(0, a)],
+        ['grid-conduction', (a) => grid(1, a)],
         ['plate-saturation', (a) => sat(0, a)],
         ['plate-saturation', (a) => sat(1, a)],
       ];
       const words: Record<string, [string, string]> = {
-        'grid-conduction:0': ['inverting', 'On positive drive peaks grid 1 reaches its cathode: grid current flows and loads the driver.'],
-        'grid-conduction:1': ['non-inverting', 'On negative drive peaks the shared cathode falls until grid 2 reaches it: section 2 draws grid current.'],
         'cutoff:0': ['inverting', 'On negative drive peaks section 1 cuts off: the inverting plate rises toward the supply and the tail current all flows in section 2.'],
         'cutoff:1': ['non-inverting', 'On positive drive peaks section 2 cuts off: the tail current all flows in section 1 and the non-inverting plate rises toward the supply.'],
+        'grid-conduction:0': ['inverting', 'On positive drive peaks grid 1 reaches its cathode: grid current flows and loads the driver.'],
+        'grid-conduction:1': ['non-inverting', 'On negative drive peaks the shared cathode falls until grid 2 reaches it: section 2 draws grid current.'],
         'plate-saturation:0': ['inverting', 'On positive drive peaks the inverting plate falls to its cathode (plate-to-cathode voltage collapses).'],
         'plate-saturation:1': ['non-inverting', 'On negative drive peaks the non-inverting plate falls to the shared cathode.'],
       };
@@ -262,7 +264,14 @@ export function analyzeLongTailedPair(input: LongTailedPairInput, options?: Anal
         describe: (limit, at) => {
           const candidates: Array<[string, number]> = [];
           criteria.forEach(([name, g], i) => {
-            if (name === limit) candidates.push([`${name}:${i % 2}`, g(at * (1 + 1e-6))]);
+            if (name !== limit) return;
+            let v = -Infinity;
+            try {
+              v = g(at * (1 + 1e-6));
+            } catch {
+              // past the solvable range: leave this side last
+            }
+            candidates.push([`${name}:${i % 2}`, v]);
           });
           candidates.sort((x, y) => y[1] - x[1]);
           const [side, explanation] = words[candidates[0]?.[0] ?? ''] ?? ['both', ''];

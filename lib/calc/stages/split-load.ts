@@ -36,7 +36,8 @@ export function analyzeSplitLoad(input: SplitLoadInput, options?: AnalyzeOptions
   if (!boot && vg >= input.supply) throw new CalcError('over-supply', 'The grid voltage is at or above the supply voltage.');
   const P = 0;
   const K = 1;
-  const hasTap = rb > 0;
+  // a bias resistor below a milliohm is none (its conductance would swamp the node equations)
+  const hasTap = rb > 1e-3;
   const T: NodeRef = hasTap ? 2 : K;
   const nHeld = hasTap ? 3 : 2;
 

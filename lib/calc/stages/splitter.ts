@@ -278,7 +278,19 @@ export function analyzeSplitter(spec: SplitterSpec): StageAnalysis {
   };
   const hr = spec.headroom(hctx);
   const scale = Math.max(0.5 * Math.abs(ops[0]?.gridCathodeVoltage ?? 1), 0.05);
-  const best = nearestLimit<HeadroomLimit>(hr.criteria, input.supply, scale);
+  // a drive so large that the circuit has no solution is past every limit (the search then narrows below it)
+  const guarded = hr.criteria.map(([name, g]): [HeadroomLimit, (a: number) => number] => [
+    name,
+    (a) => {
+      try {
+        return g(a);
+      } catch (err) {
+        if (err instanceof CalcError) return 1;
+        throw err;
+      }
+    },
+  ]);
+  const best = nearestLimit<HeadroomLimit>(guarded, input.supply, scale);
   const swingOf = (o: SplitterOutput) =>
     Math.abs(voltageOf(held, hctx.solve(best[1]), o.node) - voltageOf(held, hctx.solve(-best[1]), o.node)) / 2;
   const swings = spec.outputs.map(swingOf);
