@@ -81,6 +81,7 @@ export function ProjectView({ initialProject, canWrite, watcherOptions = [] }: {
           )}
         </div>
         <div className="flex flex-wrap gap-2">
+          {project.stages.length ? <Link className={buttonVariants({ variant: 'secondary', size: 'sm' })} href={`/projects/${project.id}/explore`}>Explore the chain</Link> : null}
           <PdfDownloadButton href={`/api/projects/${project.id}/report`} filename={`anodyne-${project.name.replace(/[^A-Za-z0-9]+/g, '-').toLowerCase()}-report.pdf`} label="Design report (PDF)" />
           {canWrite && !project.archived ? (
             <SubmitForReviewButton projectId={project.id} status={project.status} disabledReason={project.stages.length === 0 ? 'Add a stage before submitting for review.' : null} />

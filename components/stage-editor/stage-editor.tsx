@@ -243,6 +243,11 @@ function StageEditorForm({ project, stage, tubes, canEdit }: { project: ProjectD
             />
             {STATE_TEXT[status]}
           </span>
+          {!isNew ? (
+            <Link href={`/projects/${project.id}/stages/${stage.id}/explore`} className="text-sm text-dcline underline" data-testid="explore-link">
+              Explore
+            </Link>
+          ) : null}
           {readOnly ? (
             <Badge tone="neutral">Read only</Badge>
           ) : (

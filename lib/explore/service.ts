@@ -15,12 +15,13 @@ import { engineTubeFrom } from '@/lib/tubes/service';
 import type { CreateExploreRun } from '@/lib/validation/explore';
 import { stageBodySchema } from '@/lib/validation/stage';
 import { ExploreRun, TubeModel, TubeType } from '@/models';
+import type { ExploreRunKind, ExploreRunStatus } from '@/models/explore-run';
 import type { ExploreSetup } from './execute';
 import { EXPLORE_QUEUE, EXPLORE_QUEUES } from './queue-names';
 
 export type ExploreRunDTO = {
   id: number;
-  kind: ExploreRun['kind'];
+  kind: ExploreRunKind;
   scope: 'stage' | 'chain';
   projectId: number;
   stageId: number | null;
@@ -29,7 +30,7 @@ export type ExploreRunDTO = {
   /** true when the stage (or project) has not changed since the run was made */
   current: boolean | null;
   params: Record<string, unknown>;
-  status: ExploreRun['status'];
+  status: ExploreRunStatus;
   cancelRequested: boolean;
   progress: { done: number; total: number };
   attempt: number;
@@ -208,7 +209,7 @@ export async function getRun(id: number): Promise<ExploreRunDTO> {
 }
 
 /** Runs of a stage or a project (newest first, without results). */
-export async function listRuns(q: { stageId?: number; projectId?: number; kind?: ExploreRun['kind'] }): Promise<ExploreRunDTO[]> {
+export async function listRuns(q: { stageId?: number; projectId?: number; kind?: ExploreRunKind }): Promise<ExploreRunDTO[]> {
   const where: Record<string, unknown> = {};
   if (q.stageId !== undefined) where.stageId = q.stageId;
   if (q.projectId !== undefined) where.projectId = q.projectId;
