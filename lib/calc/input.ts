@@ -150,6 +150,19 @@ export const outputTransformerSchema = z.object({
 });
 export type OutputTransformer = z.output<typeof outputTransformerSchema>;
 
+/**
+ * Global feedback entered on the output stage it is taken from: from the speaker terminal into an unbypassed
+ * resistor at the bottom of the project's first stage's cathode circuit. The stage analysis ignores it; the
+ * project's chain closes the loop (lib/calc/feedback).
+ */
+export const stageFeedbackSchema = z.object({
+  resistor: ohms(),
+  shuntResistor: ohms(),
+  capacitor: farads().nullable().default(null),
+  polarity: z.enum(['auto', 'normal', 'reversed']).default('auto'),
+});
+export type StageFeedback = z.output<typeof stageFeedbackSchema>;
+
 const singleEndedOutput = z.object({
   topology: z.literal('single-ended-output'),
   tube: tubeSchema,
@@ -159,6 +172,7 @@ const singleEndedOutput = z.object({
   bias: amplifierBiasSchema,
   screen: screenSchema.optional(),
   transformer: outputTransformerSchema.optional(),
+  feedback: stageFeedbackSchema.optional(),
 });
 
 const pushPullOutput = z.object({
@@ -171,6 +185,7 @@ const pushPullOutput = z.object({
   bias: amplifierBiasSchema,
   screen: screenSchema.optional(),
   transformer: outputTransformerSchema.optional(),
+  feedback: stageFeedbackSchema.optional(),
 });
 
 /**
