@@ -1,16 +1,15 @@
 import { expect, test } from '@playwright/test';
-import { shot, signIn } from './support';
+import { apiAs, okJson, shot, signIn } from './support';
 
-// One project made for this spec through the API, shared by the designer's and the technician's tests.
-test.describe.serial('review and bench settings on the project page', () => {
-  let projectId: number;
+// Each test makes its own project through the API, so either runs alone.
+test.describe('review and bench settings on the project page', () => {
   const name = `E2E settings ${Date.now()}`;
 
   test('a designer sets a 5 % plate-current tolerance and a watcher, and they survive a reload', async ({ page }) => {
     await signIn(page, 'designer');
     const created = await page.request.post('/api/projects', { data: { name, description: 'Settings card check' } });
     expect(created.status()).toBe(201);
-    projectId = (await created.json()).project.id;
+    const projectId = (await created.json()).project.id as number;
     await page.goto(`/projects/${projectId}`);
     const card = page.getByTestId('review-settings');
     await expect(card).toBeVisible();
@@ -67,8 +66,16 @@ test.describe.serial('review and bench settings on the project page', () => {
   });
 
   test('a technician sees the tolerances and watchers read-only', async ({ page }) => {
+    // set up through the API as the designer: a 5 % plate-current tolerance and the technician as a watcher
+    const designer = await apiAs('designer');
+    const technician = await apiAs('technician');
+    const { user } = await okJson<{ user: { id: number } }>(await technician.get('/api/me'));
+    const { project } = await okJson<{ project: { id: number; version: number } }>(await designer.post('/api/projects', { data: { name: `${name} read-only` } }));
+    await okJson(await designer.patch(`/api/projects/${project.id}`, { data: { version: project.version, benchTolerances: { plateCurrent: 0.05 }, watchers: [user.id] } }));
+    await Promise.all([designer.dispose(), technician.dispose()]);
+
     await signIn(page, 'technician');
-    await page.goto(`/projects/${projectId}`);
+    await page.goto(`/projects/${project.id}`);
     const card = page.getByTestId('review-settings');
     await expect(card.getByTestId('tolerance-plateCurrent')).toContainText('±5 %');
     await expect(card.getByTestId('tolerance-plateVoltage')).toContainText('±10 % default');
