@@ -1,12 +1,24 @@
 // Scans the production server's log (stdout + stderr of `next start`) for errors nobody handled: Next's "⨯" error
-// lines, the API's "[api] unhandled error" (a 500), uncaught exceptions and unhandled rejections.
+// lines, the API's "[api] unhandled error" (a 500), engine and report failures, bare errors, server-component
+// error digests, uncaught exceptions and unhandled rejections.
 // Writes { passed, failed, problems } for the closing line of npm test.
 //   node scripts/check-server-log.mjs reports/server.log reports/checks/server-log.json
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 
 const [logFile = 'reports/server.log', out = 'reports/checks/server-log.json'] = process.argv.slice(2);
-const PATTERNS = [/⨯/, /\[api\] unhandled error/i, /unhandled ?rejection/i, /uncaught ?exception/i, /^\s*(Type|Reference|Range|Syntax)Error\b/, /\bFATAL\b/];
+const PATTERNS = [
+  /⨯/, // Next's own error lines
+  /\[api\] unhandled error/i, // lib/api/errors.ts: an answer of 500
+  /\[stages\] engine failed/, // the engine threw something other than a CalcError
+  /\[report\]|report rendering failed/, // a PDF that could not be rendered
+  /\[jobs\] /, // the job queue reported an error
+  /unhandled ?rejection/i,
+  /uncaught ?exception/i,
+  /^\s*(Type|Reference|Range|Syntax|URI)?Error: /, // a bare error printed by console.error(err)
+  /\bdigest: ?['"]/, // a server component error (production hides its message behind a digest)
+  /\bFATAL\b/,
+];
 
 const problems = [];
 let lines = 0;
