@@ -21,7 +21,7 @@ import { renameProjectSchema, type RenameProjectInput } from '@/lib/validation/p
 import { SubmitForReviewButton } from '@/components/reviews/submit-for-review-button';
 import { ChainView } from './chain-view';
 import { ReviewSettings } from './review-settings';
-import { SupplyEditor } from './supply-editor';
+import { SupplyCircuitEditor } from './supply-circuit-editor';
 
 export const projectKey = (id: number) => ['project', id] as const;
 
@@ -114,7 +114,7 @@ export function ProjectView({ initialProject, canWrite, watcherOptions = [] }: {
 
       <ChainView project={project} />
 
-      <SupplyEditor project={project} editable={editable} onSaved={setProject} />
+      <SupplyCircuitEditor project={project} editable={editable} onSaved={setProject} />
 
       <ReviewSettings project={project} editable={editable} users={watcherOptions} onSaved={setProject} />
     </div>

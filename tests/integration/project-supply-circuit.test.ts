@@ -5,7 +5,7 @@ import { GET as chainRoute } from '@/app/api/projects/[id]/chain/route';
 import { PATCH as patchProject } from '@/app/api/projects/[id]/route';
 import { POST as createStage } from '@/app/api/projects/[id]/stages/route';
 import { POST as createProjectRoute } from '@/app/api/projects/route';
-import { TubeType } from '@/models';
+import { Project, TubeType } from '@/models';
 import { call } from '../support/api';
 
 let projectId: number;
@@ -79,5 +79,19 @@ describe('project supply circuit', () => {
     expect(res.json.project.supplyCircuit).toBeNull();
     const chain = await call(chainRoute, { as: 'designer', params: { id: String(projectId) }, path: `/api/projects/${projectId}/chain` });
     expect(chain.json.chain.supply.circuit).toBeUndefined();
+  });
+});
+
+describe('demo projects', () => {
+  it('carry supply circuits that solve with their stages', async () => {
+    for (const name of ['Crunch preamp (two 12AX7 stages + cathode follower)', 'Single-ended 300B output with 12AU7 driver']) {
+      const p = await Project.findOne({ where: { name } });
+      expect(p?.supplyCircuit, name).toBeTruthy();
+      const res = await call(chainRoute, { as: 'designer', params: { id: String(p!.id) }, path: `/api/projects/${p!.id}/chain` });
+      expect(res.status).toBe(200);
+      const { chain } = res.json;
+      expect(chain.supply.circuit.nodes.length).toBeGreaterThan(1);
+      for (const st of chain.stages) expect(st.solvedSupply, st.name).toBeGreaterThan(100);
+    }
   });
 });
