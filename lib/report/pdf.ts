@@ -1,7 +1,7 @@
 import 'server-only';
 // Report PDFs are drawn in worker threads: a 20-stage report takes seconds of CPU, and on the request thread it
 // would stall every other user. One pool per process, a queue in front of it, and a time budget per report.
-import { existsSync, mkdirSync } from 'node:fs';
+import { existsSync, mkdirSync, rmSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
@@ -48,7 +48,8 @@ let sourceBundle: string | null = null;
 async function bundleFromSource(): Promise<string> {
   if (sourceBundle && existsSync(sourceBundle)) return sourceBundle;
   const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
-  const outfile = path.join(root, 'node_modules/.cache/anodyne/pdf-worker.mjs');
+  // One file per process: several test runs may bundle at the same time.
+  const outfile = path.join(root, `node_modules/.cache/anodyne/pdf-worker-${process.pid}.mjs`);
   mkdirSync(path.dirname(outfile), { recursive: true });
   const esbuild = await import(/* turbopackIgnore: true */ /* webpackIgnore: true */ 'esbuild');
   await esbuild.build({
@@ -64,6 +65,7 @@ async function bundleFromSource(): Promise<string> {
     logLevel: 'silent',
   });
   sourceBundle = outfile;
+  process.once('exit', () => rmSync(outfile, { force: true }));
   return outfile;
 }
 
