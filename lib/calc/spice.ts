@@ -61,6 +61,11 @@ export type NetlistOptions = {
   analyses: SpiceAnalysis[];
   /** samples per period for the transient (default 256) */
   stepsPerPeriod?: number;
+  /**
+   * push-pull only: drive grid 2 with its own sine (V peak at the grid, phase in degrees relative to grid 1's
+   * drive) instead of the antiphase copy of grid 1's — the netlist for `analyzePushPullDriven`
+   */
+  secondGrid?: { amplitude: number; phaseDeg: number };
 };
 
 /** Magnetising inductance of the modelled output transformer (large enough to be invisible at 1 kHz). */
@@ -120,7 +125,7 @@ function inputLines(input: StageInput, grid: string, ret: string, acCoupled: boo
   return lines;
 }
 
-function build(input: StageInput): Built {
+function build(input: StageInput, options: NetlistOptions = { analyses: [] }): Built {
   const pentode = input.tube.model === 'koren-pentode';
   const tubeCall = (x: string, p: string, g: string, k: string) => `${x} ${p} ${g} ${k}${pentode ? ` g2t${x}` : ''} TUBE`;
   const screenMeter = (x: string) => (pentode ? [`VMS${x} g2 g2t${x} DC 0`] : []);
@@ -206,7 +211,9 @@ function build(input: StageInput): Built {
       const amp = rs > 0 ? (input.drive.amplitude * (rs + rg)) / rg : input.drive.amplitude;
       body.push(
         `VIN src1 ${b.ret} DC 0 AC 1 SIN(0 ${num(amp)} ${num(input.drive.frequency)})`,
-        `EINV src2 ${b.ret} src1 ${b.ret} -1`,
+        options.secondGrid
+          ? `VIN2 src2 ${b.ret} DC 0 AC 0 SIN(0 ${num((options.secondGrid.amplitude * (rs + rg)) / rg)} ${num(input.drive.frequency)} 0 0 ${num(options.secondGrid.phaseDeg)})`
+          : `EINV src2 ${b.ret} src1 ${b.ret} -1`,
         `RS1 src1 grid1 ${num(Math.max(rs, 1e-3))}`,
         `RS2 src2 grid2 ${num(Math.max(rs, 1e-3))}`,
         `RG1 grid1 ${b.ret} ${num(rg)}`,
@@ -293,7 +300,7 @@ export const RESPONSE_FREQUENCIES = [20, 1000, 20000];
  * by ngspice's fourier table, taken after the transient has settled. Plate and grid are tube 1's for push-pull.
  */
 export function stageNetlist(input: StageInput, options: NetlistOptions = { analyses: ['op', 'ac', 'tran'] }): string {
-  const b = build(input);
+  const b = build(input, options);
   const f = input.drive.frequency;
   const period = 1 / f;
   const steps = options.stepsPerPeriod ?? 256;
