@@ -1,7 +1,7 @@
 import 'server-only';
 // Report PDFs are drawn in worker threads: a 20-stage report takes seconds of CPU, and on the request thread it
 // would stall every other user. One pool per process, a queue in front of it, and a time budget per report.
-import { existsSync, mkdirSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, rmSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
@@ -45,12 +45,26 @@ type Slot = { worker: Worker; busy: Pending | null };
 const fromSource = !process.env.NEXT_RUNTIME;
 let sourceBundle: string | null = null;
 
+function alive(pid: number) {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
 async function bundleFromSource(): Promise<string> {
   if (sourceBundle && existsSync(sourceBundle)) return sourceBundle;
   const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
   // One file per process: several test runs may bundle at the same time.
   const outfile = path.join(root, `node_modules/.cache/anodyne/pdf-worker-${process.pid}.mjs`);
   mkdirSync(path.dirname(outfile), { recursive: true });
+  // Files left by runs that ended without an exit event (a test runner's killed fork).
+  for (const f of readdirSync(path.dirname(outfile))) {
+    const pid = Number(/^pdf-worker-(\d+)\.mjs$/.exec(f)?.[1]);
+    if (pid && !alive(pid)) rmSync(path.join(path.dirname(outfile), f), { force: true });
+  }
   const esbuild = await import(/* turbopackIgnore: true */ /* webpackIgnore: true */ 'esbuild');
   await esbuild.build({
     entryPoints: [path.join(root, 'lib/report/pdf-worker.ts')],
