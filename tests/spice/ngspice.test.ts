@@ -52,7 +52,7 @@ export function runNgspice(netlist: string, dir: string, name: string): Promise<
   const file = path.join(dir, `${name}.cir`);
   writeFileSync(file, netlist);
   return new Promise((resolve, reject) => {
-    execFile('ngspice', ['-b', file], { maxBuffer: 16 * 1024 * 1024, timeout: 120_000 }, (err, stdout, stderr) => {
+    execFile('ngspice', ['-b', file], { maxBuffer: 16 * 1024 * 1024, timeout: 400_000 }, (err, stdout, stderr) => {
       if (err) reject(new Error(`ngspice failed on ${name}: ${err.message}\n${stderr}`));
       else resolve(stdout);
     });
@@ -92,7 +92,7 @@ describe.skipIf(!spiceAvailable)('lib/calc against ngspice', () => {
       const c = cases[i];
       if (c) c.spice = parseSpiceOutput(text);
     });
-  }, 300_000);
+  }, 600_000);
 
   it('covers at least 20 circuits and all seven topologies', () => {
     expect(cases.length).toBeGreaterThanOrEqual(20);
