@@ -52,6 +52,10 @@ export type StageFormValues = {
   };
   screen: { kind: 'fixed' | 'resistor'; supply: string; resistor: string; bypass: string };
   load: { enabled: boolean; resistance: string; couplingCapacitor: string };
+  /** output stages: the transformer beyond the ideal one (empty values are limits that are not modelled) */
+  transformer: { enabled: boolean; speakerLoad: string; secondaryResistance: string; primaryInductance: string; leakageInductance: string; windingCapacitance: string };
+  /** output stages: global feedback from the speaker terminal to the project's first stage */
+  feedback: { enabled: boolean; resistor: string; shuntResistor: string; capacitor: string; polarity: 'auto' | 'normal' | 'reversed' };
 };
 
 /** Units shown beside each field (the schema records the same unit in each quantity's meta; a unit test checks). */
@@ -83,6 +87,14 @@ export const FIELD_UNITS: Record<string, string> = {
   'tail.tailSupply': 'V',
   'tail.current': 'A',
   secondGridBypass: 'F',
+  'transformer.speakerLoad': 'Ω',
+  'transformer.secondaryResistance': 'Ω',
+  'transformer.primaryInductance': 'H',
+  'transformer.leakageInductance': 'H',
+  'transformer.windingCapacitance': 'F',
+  'feedback.resistor': 'Ω',
+  'feedback.shuntResistor': 'Ω',
+  'feedback.capacitor': 'F',
 };
 
 /** SI number → the text a practitioner would type: 4700 → '4.7k', 2.2e-8 → '22n', -1.5 → '-1.5'. */
@@ -120,6 +132,8 @@ const BASE: StageFormValues = {
   secondPlateResistor: '100k',
   tail: { kind: 'resistor', tailResistor: '22k', tailSupply: '0', current: '2m' },
   secondGridBypass: '100n',
+  transformer: { enabled: false, speakerLoad: '8', secondaryResistance: '', primaryInductance: '', leakageInductance: '', windingCapacitance: '' },
+  feedback: { enabled: false, resistor: '4k7', shuntResistor: '100', capacitor: '', polarity: 'auto' },
 };
 
 const TOPOLOGY_DEFAULTS: Record<Topology, (v: StageFormValues) => StageFormValues> = {
@@ -190,6 +204,8 @@ export function sectionsFor(topology: Topology, tubeIsPentode: boolean) {
     // a pentode or beam tetrode in an output stage needs its screen supply
     screen: topology === 'pentode-amplifier' || ((topology === 'single-ended-output' || topology === 'push-pull-output') && tubeIsPentode),
     load: topology === 'common-cathode' || topology === 'pentode-amplifier' || topology === 'cathode-follower' || topology === 'long-tailed-pair' || topology === 'split-load',
+    transformer: topology === 'single-ended-output' || topology === 'push-pull-output',
+    feedback: topology === 'single-ended-output' || topology === 'push-pull-output',
   };
 }
 
@@ -245,6 +261,19 @@ export function toStageBodyInput(v: StageFormValues, opts: { tubeIsPentode?: boo
           : { kind: 'fixed', supply: text(v.screen.supply) };
   }
   if (s.load && v.load.enabled) body.load = { resistance: text(v.load.resistance), couplingCapacitor: text(v.load.couplingCapacitor) };
+  if (s.transformer && v.transformer.enabled) {
+    const x = v.transformer;
+    body.transformer = {
+      speakerLoad: text(x.speakerLoad),
+      secondaryResistance: blankToNull(x.secondaryResistance),
+      primaryInductance: blankToNull(x.primaryInductance),
+      leakageInductance: blankToNull(x.leakageInductance),
+      windingCapacitance: blankToNull(x.windingCapacitance),
+    };
+  }
+  if (s.feedback && v.feedback.enabled) {
+    body.feedback = { resistor: text(v.feedback.resistor), shuntResistor: text(v.feedback.shuntResistor), capacitor: blankToNull(v.feedback.capacitor), polarity: v.feedback.polarity };
+  }
   return body;
 }
 
@@ -304,6 +333,8 @@ export function fromStageInputs(
   const plates = i.plateResistors as Record<string, unknown> | undefined;
   const tail = i.tail as Record<string, unknown> | undefined;
   const grids = i.grids as Record<string, unknown> | undefined;
+  const xf = i.transformer as Record<string, unknown> | undefined;
+  const fbk = i.feedback as Record<string, unknown> | undefined;
   const splitterBiasKind =
     topology === 'long-tailed-pair' ? (grids?.kind === 'dc' ? 'dc-coupled' : 'bias-tap') : topology === 'split-load' ? (bias.kind === 'dc-coupled' ? 'dc-coupled' : 'bootstrapped') : null;
   return {
@@ -351,5 +382,24 @@ export function fromStageInputs(
         }
       : base.screen,
     load: load ? { enabled: true, resistance: t(load.resistance, base.load.resistance), couplingCapacitor: t(load.couplingCapacitor, base.load.couplingCapacitor) } : { ...base.load, enabled: false },
+    transformer: xf
+      ? {
+          enabled: true,
+          speakerLoad: t(xf.speakerLoad, base.transformer.speakerLoad),
+          secondaryResistance: t(xf.secondaryResistance ?? null, ''),
+          primaryInductance: t(xf.primaryInductance ?? null, ''),
+          leakageInductance: t(xf.leakageInductance ?? null, ''),
+          windingCapacitance: t(xf.windingCapacitance ?? null, ''),
+        }
+      : base.transformer,
+    feedback: fbk
+      ? {
+          enabled: true,
+          resistor: t(fbk.resistor, base.feedback.resistor),
+          shuntResistor: t(fbk.shuntResistor, base.feedback.shuntResistor),
+          capacitor: t(fbk.capacitor ?? null, ''),
+          polarity: fbk.polarity === 'normal' || fbk.polarity === 'reversed' ? fbk.polarity : 'auto',
+        }
+      : base.feedback,
   };
 }

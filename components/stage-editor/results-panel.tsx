@@ -2,7 +2,7 @@
 
 // Operating point, small- and large-signal results and every rating check, as the engine returned them.
 import { StatusBadge } from '@/components/ui/badge';
-import type { RatingCheck, StageAnalysis } from '@/lib/calc';
+import type { RatingCheck, StageAnalysis, TransformerAnalysis } from '@/lib/calc';
 import { formatEng, formatMaybe, formatRatio } from '@/lib/format/number';
 import { cn } from '@/lib/utils';
 
@@ -73,6 +73,7 @@ export function ResultsPanel({ analysis, stale }: { analysis: StageAnalysis; sta
         {ls.outputPower !== null ? <Row label="Output power" value={formatMaybe(ls.outputPower, 'W')} testId="output-power" /> : null}
       </Section>
       {analysis.outputs ? <OutputsSection analysis={analysis} /> : null}
+      {analysis.transformer ? <TransformerSection x={analysis.transformer} /> : null}
       {analysis.warnings.length ? (
         <section className="border-t border-rule px-4 py-3">
           <h3 className="mb-1 text-[11px] font-semibold text-muted">Notes from the calculation</h3>
@@ -158,5 +159,31 @@ export function RatingsPanel({ ratings, stale }: { ratings: RatingCheck[]; stale
         </li>
       ))}
     </ul>
+  );
+}
+
+/** Output transformer: power at the speaker, losses, bandwidth, output impedance, and the limits not modelled. */
+function TransformerSection({ x }: { x: TransformerAnalysis }) {
+  return (
+    <Section title="At the speaker (output transformer)">
+      <div data-testid="transformer-results">
+        <Row label="Turns ratio" value={`${formatRatio(x.turnsRatio)} : 1`} />
+        {x.speakerPower !== null ? <Row label="Power into the speaker" value={formatMaybe(x.speakerPower, 'W')} testId="speaker-power" /> : null}
+        <Row label="Insertion loss (windings)" value={`${x.insertionLossDb.toFixed(2)} dB`} />
+        <Row label="Low −3 dB point" value={x.lowCutoff !== null ? formatMaybe(x.lowCutoff, 'Hz') : 'not modelled'} testId="xf-low" />
+        <Row label="High −3 dB point" value={x.highCutoff !== null ? formatMaybe(x.highCutoff, 'Hz') : 'not modelled'} testId="xf-high" />
+        {x.peak ? <Row label="Resonant peak" value={`+${x.peak.db.toFixed(1)} dB at ${formatEng(x.peak.frequency, 'Hz')}`} /> : null}
+        <Row label="Output impedance at 1 kHz" value={formatMaybe(x.outputImpedance, 'Ω')} />
+        <Row label="Damping factor at 1 kHz" value={formatRatio(x.dampingFactor)} testId="damping-factor" />
+        <Row label="Lowest damping factor, 20 Hz–20 kHz" value={`${formatRatio(x.minDampingFactor.value)} at ${formatEng(x.minDampingFactor.frequency, 'Hz')}`} />
+        {x.notModelled.length ? (
+          <ul className="mt-1 list-disc space-y-0.5 pl-4 text-xs text-near">
+            {x.notModelled.map((n) => (
+              <li key={n.limit}>{n.message}</li>
+            ))}
+          </ul>
+        ) : null}
+      </div>
+    </Section>
   );
 }

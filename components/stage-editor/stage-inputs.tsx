@@ -67,6 +67,8 @@ export function StageInputs({
   const biasKind = watch('bias.kind');
   const screenKind = watch('screen.kind');
   const loadEnabled = watch('load.enabled');
+  const transformerEnabled = watch('transformer.enabled');
+  const feedbackEnabled = watch('feedback.enabled');
   const tailKind = watch('tail.kind');
   const tube = tubes.find((t) => String(t.id) === tubeId);
   const tubeIsPentode = !!tube && tube.family !== 'triode';
@@ -242,6 +244,48 @@ export function StageInputs({
             <>
               <Q name="load.resistance" label="Load (next grid leak)" />
               <Q name="load.couplingCapacitor" label="Coupling capacitor" />
+            </>
+          ) : null}
+        </Group>
+      ) : null}
+
+      {s.transformer ? (
+        <Group title="Output transformer">
+          <label className="col-span-2 flex items-center gap-2 text-sm">
+            <input type="checkbox" className="h-4 w-4 accent-[var(--heater)]" {...register('transformer.enabled')} />
+            Model the transformer (winding losses, bass and treble limits)
+          </label>
+          {transformerEnabled ? (
+            <>
+              <Q name="transformer.speakerLoad" label="Speaker load" hint="4, 8, 16 Ω or any: sets the turns ratio" />
+              <Q name="transformer.secondaryResistance" label="Secondary resistance" hint="DC resistance; empty: not modelled" />
+              <Q name="transformer.primaryInductance" label="Primary inductance" hint={topology === 'single-ended-output' ? 'At the operating current; empty: no bass limit' : 'Empty: no bass limit'} />
+              <Q name="transformer.leakageInductance" label="Leakage inductance" hint="Referred to the primary" />
+              <Q name="transformer.windingCapacitance" label="Primary winding capacitance" hint="Empty: no treble resonance" />
+            </>
+          ) : null}
+        </Group>
+      ) : null}
+
+      {s.feedback ? (
+        <Group title="Global feedback">
+          <label className="col-span-2 flex items-center gap-2 text-sm">
+            <input type="checkbox" className="h-4 w-4 accent-[var(--heater)]" {...register('feedback.enabled')} />
+            Feed the speaker signal back to the first stage&rsquo;s cathode
+          </label>
+          {feedbackEnabled ? (
+            <>
+              <Q name="feedback.resistor" label="Feedback resistor" hint="From the speaker terminal" />
+              <Q name="feedback.shuntResistor" label="Shunt resistor" hint="Unbypassed, under the first stage's cathode resistor" />
+              <Q name="feedback.capacitor" label="Step capacitor" hint="Across the feedback resistor; empty: none" />
+              <Field label="Secondary terminal" htmlFor="f-feedback-polarity">
+                <Select id="f-feedback-polarity" {...register('feedback.polarity')}>
+                  <option value="auto">Whichever gives negative feedback</option>
+                  <option value="normal">In phase with the (first) plate</option>
+                  <option value="reversed">Reversed</option>
+                </Select>
+              </Field>
+              <p className="col-span-2 text-xs text-muted">The loop needs the transformer above. Margins, damping factor and distortion with and without it are in the project&rsquo;s chain view.</p>
             </>
           ) : null}
         </Group>
