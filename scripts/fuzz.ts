@@ -73,8 +73,8 @@ async function signIn(role: Exclude<Role, 'anonymous'>): Promise<void> {
 }
 
 // ---------- real ids (read as the admin) ----------
-type IdKind = 'project' | 'stage' | 'tube' | 'model' | 'curveSet' | 'revision' | 'benchCheck' | 'photo' | 'attachment' | 'user' | 'token';
-const ids: Record<IdKind, string[]> = { project: [], stage: [], tube: [], model: [], curveSet: [], revision: [], benchCheck: [], photo: [], attachment: [], user: [], token: [] };
+type IdKind = 'project' | 'stage' | 'tube' | 'model' | 'curveSet' | 'revision' | 'benchCheck' | 'photo' | 'attachment' | 'user' | 'token' | 'run';
+const ids: Record<IdKind, string[]> = { project: [], stage: [], tube: [], model: [], curveSet: [], revision: [], benchCheck: [], photo: [], attachment: [], user: [], token: [], run: [] };
 const DEMO_USER_IDS = new Set<string>();
 
 async function getJson<T>(url: string): Promise<T | null> {
@@ -105,6 +105,7 @@ async function discover(): Promise<void> {
   ids.user = users.map((u) => String(u.id));
   for (const u of users) if (u.email.endsWith('@anodyne.test')) DEMO_USER_IDS.add(String(u.id));
   ids.token = ['x'.repeat(43)];
+  ids.run = ((await getJson<{ runs: { id: number }[] }>('/api/explore/runs'))?.runs ?? []).slice(0, 4).map((r) => String(r.id));
   for (const k of Object.keys(ids) as IdKind[]) if (ids[k].length === 0) ids[k] = ['1'];
 }
 
@@ -185,7 +186,10 @@ const ROUTES: Route[] = [
   { method: 'GET', path: '/api/bench-checks/{benchCheck}' },
   { method: 'GET', path: '/api/bench-checks/{benchCheck}/photos/{photo}' },
   { method: 'GET', path: '/api/revisions', query: { state: q.oneOf('submitted', 'approved', 'changes-requested'), projectId: q.id('project') } },
-  { method: 'GET', path: '/api/revisions/{revision}' },
+  { method: 'GET', path: '/api/revisions/{revision}', query: { compare: q.oneOf('1', '2') } },
+  { method: 'GET', path: '/api/explore/runs', query: { stageId: q.id('stage'), projectId: q.id('project'), kind: q.oneOf('tolerance', 'swap', 'search') } },
+  { method: 'GET', path: '/api/explore/runs/{run}' },
+  { method: 'POST', path: '/api/explore/runs', body: () => ({ kind: 'swap', target: { stageId: Number(pick(ids.stage)) } }), weight: 0.5 },
   { method: 'GET', path: '/api/revisions/{revision}/report', weight: 0.15 },
   { method: 'GET', path: '/api/invitations/{token}' },
   { method: 'GET', path: '/api/auth/session', weight: 0.3 },
@@ -220,6 +224,8 @@ const ROUTES: Route[] = [
   { method: 'GET', path: '/projects/{project}' },
   { method: 'GET', path: '/projects/{project}/stages/{stage}' },
   { method: 'GET', path: '/projects/{project}/stages/new' },
+  { method: 'GET', path: '/projects/{project}/explore' },
+  { method: 'GET', path: '/projects/{project}/stages/{stage}/explore' },
   { method: 'GET', path: '/tubes' },
   { method: 'GET', path: '/tubes/{tube}' },
   { method: 'GET', path: '/tubes/{tube}/edit' },
@@ -433,6 +439,7 @@ async function main(): Promise<void> {
   async function worker(): Promise<void> {
     while (sent < REQUESTS && Date.now() < deadline) {
       sent += 1;
+      if (sent % 1000 === 0) console.log(`[fuzz] ${sent} requests, ${((Date.now() - t0) / 1000).toFixed(0)} s, ${findings.length} problem answers so far`);
       await send(buildRequest());
     }
   }

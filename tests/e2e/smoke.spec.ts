@@ -1,3 +1,5 @@
+import { readdirSync, readFileSync, statSync } from 'node:fs';
+import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
 import { apiAs } from './support';
 
@@ -139,7 +141,14 @@ function urls(ids: Ids): string[] {
     '/api/revisions?state=changes-requested',
     `/api/revisions?projectId=${p}`,
     `/api/revisions/${rev}`,
+    `/api/revisions/${rev}?compare=1`,
     `/api/revisions/${rev}/report`,
+    '/api/explore/runs',
+    `/api/explore/runs?stageId=${s}`,
+    `/api/explore/runs?projectId=${p}&kind=tolerance`,
+    '/api/explore/runs?kind=swap',
+    '/api/explore/runs?kind=search',
+    '/api/explore/runs/999999',
     '/api/invitations/not-a-real-token',
     '/api/auth/csrf',
     '/api/auth/session',
@@ -153,6 +162,8 @@ function urls(ids: Ids): string[] {
     `/projects/${p}`,
     `/projects/${p}/stages/${s}`,
     `/projects/${p}/stages/new`,
+    `/projects/${p}/explore`,
+    `/projects/${p}/stages/${s}/explore`,
     '/tubes',
     '/tubes/new',
     `/tubes/${t}`,
@@ -173,6 +184,34 @@ function urls(ids: Ids): string[] {
     '/no-such-page',
   ];
 }
+
+/** Every GET route file and page in app/, as a pattern over request paths ([id] → one segment, (group) dropped). */
+function appGetRoutes(): { file: string; pattern: RegExp }[] {
+  const root = path.resolve(__dirname, '../../app');
+  const out: { file: string; pattern: RegExp }[] = [];
+  const walk = (dir: string) => {
+    for (const name of readdirSync(dir)) {
+      const p = path.join(dir, name);
+      if (statSync(p).isDirectory()) walk(p);
+      else if ((name === 'route.ts' && /export const GET\b/.test(readFileSync(p, 'utf8'))) || name === 'page.tsx') {
+        const segments = path.relative(root, dir).split(path.sep).filter((seg) => seg && !/^\(.*\)$/.test(seg));
+        const body = segments.map((seg) => (seg.startsWith('[...') ? '.+' : seg.startsWith('[') ? '[^/]+' : seg.replace(/[.*+?^${}()|[\]\\]/g, '\\$&'))).join('/');
+        out.push({ file: path.relative(root, p), pattern: new RegExp(`^/${body}/?(\\?.*)?$`) });
+      }
+    }
+  };
+  walk(root);
+  return out;
+}
+
+test('the smoke list covers every GET route and page in app/', () => {
+  const fake: Ids = { projectId: 1, stageId: 1, tubeIds: [1, 2, 3], modelId: 1, curveSetId: 1, attachmentId: 1, revisionId: 1, benchCheckId: 1, photoId: 1 };
+  const list = urls(fake);
+  const routes = appGetRoutes();
+  expect(routes.length).toBeGreaterThan(30);
+  const missing = routes.filter((r) => !list.some((u) => r.pattern.test(u))).map((r) => r.file);
+  expect(missing, 'GET routes or pages with no smoke request: add them to urls()').toEqual([]);
+});
 
 test.describe('production smoke: no 5xx on any GET', () => {
   let ids: Ids;
