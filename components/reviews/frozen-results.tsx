@@ -2,7 +2,9 @@ import { StatusBadge } from '@/components/ui/badge';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { stageInputRows, stageResults } from '@/lib/review/diff';
 import type { RevisionSnapshot } from '@/lib/review/types';
-import { formatValue } from '@/lib/format/number';
+import { formatEng, formatValue } from '@/lib/format/number';
+import { circuitNodes } from '@/lib/calc/supply/ladder';
+import type { ProjectSupplyCircuitRecord } from '@/models/types';
 
 // The engine's results exactly as frozen in the revision: what the reviewer signs off.
 export function FrozenResults({ snapshot }: { snapshot: RevisionSnapshot }) {
@@ -10,6 +12,7 @@ export function FrozenResults({ snapshot }: { snapshot: RevisionSnapshot }) {
     <Card>
       <CardHeader title="Frozen inputs and results" actions={<span className="text-xs text-muted">as designed and calculated when submitted</span>} />
       <CardBody className="grid gap-5 lg:grid-cols-2" data-testid="frozen-results">
+        {snapshot.supplyCircuit ? <FrozenSupply circuit={snapshot.supplyCircuit} /> : null}
         {snapshot.stages.map((s) => (
           <section key={s.id} className="space-y-2">
             <h3 className="text-sm font-semibold">
@@ -68,5 +71,27 @@ export function FrozenResults({ snapshot }: { snapshot: RevisionSnapshot }) {
         ))}
       </CardBody>
     </Card>
+  );
+}
+
+// The supply circuit as submitted (its solution is in the design report and on the project page).
+function FrozenSupply({ circuit }: { circuit: ProjectSupplyCircuitRecord }) {
+  const rect = circuit.rectifier.kind === 'silicon-bridge' ? 'silicon bridge' : circuit.rectifier.kind === 'silicon-centre-tap' ? 'silicon centre tap' : 'vacuum full-wave';
+  return (
+    <section className="space-y-1 lg:col-span-2" data-testid="frozen-supply">
+      <h3 className="text-sm font-semibold">Supply circuit</h3>
+      <p className="text-sm">
+        {formatEng(circuit.mains.voltage, 'V')} {circuit.mains.frequency} Hz mains (±{Math.round((circuit.mains.variation ?? 0.1) * 100)} %) · secondary {formatEng(circuit.secondary.voltage, 'V')} rms
+        {circuit.rectifier.kind === 'silicon-bridge' ? '' : ' each half'}, {formatEng(circuit.secondary.resistance, 'Ω')} · {rect} {circuit.rectifier.type ?? ''} ·{' '}
+        {circuit.reservoir ? 'capacitor input' : 'choke input'}
+      </p>
+      <ul className="num flex flex-wrap gap-x-4 text-xs text-muted">
+        {circuitNodes(circuit).map((n) => (
+          <li key={n.key}>
+            {n.key} {n.name}: {n.inductance > 0 ? `${formatEng(n.inductance, 'H')} + ` : ''}{formatEng(n.droppingResistor, 'Ω')} → {formatEng(n.filterCapacitor, 'F')}
+          </li>
+        ))}
+      </ul>
+    </section>
   );
 }

@@ -3,9 +3,11 @@
 import { existsSync } from 'node:fs';
 import { Circle, Document, Font, Line, Page, Polyline, StyleSheet, Svg, Text, View, renderToBuffer } from '@react-pdf/renderer';
 import type { ChainResult } from '@/lib/calc/chain';
+import type { SupplyResult } from '@/lib/calc/supply/types';
 import type { StageAnalysis } from '@/lib/calc';
 import type { ProjectDetail } from '@/lib/projects/service';
 import type { StageDTO } from '@/lib/stages/service';
+import type { ToleranceDigest } from '@/lib/explore/digest';
 import { formatEng } from '@/lib/format/number';
 import { inputRows, LIMIT_WORDS, TOPOLOGY_LABELS } from './labels';
 
@@ -19,6 +21,8 @@ export type ReportOptions = {
     submittedAt?: string | null;
     decision?: { decision: 'approve' | 'request-changes'; reviewer: string; comment: string; at: string } | null;
   };
+  /** the latest tolerance run of each stage made for the reported stage versions (Explore) */
+  tolerance?: ToleranceDigest[];
   /** the chain + supply solution, when the caller has it (the report route does) */
   chain?: ChainResult | null;
   generatedAt?: Date;
@@ -244,9 +248,57 @@ function StageSection({ stage, index, chain }: { stage: StageDTO; index: number;
   );
 }
 
+// The supply as a circuit: rectifier, nodes at idle and full drive with ripple and turn-on peak, ratings, cautions.
+function SupplyCircuitSection({ result }: { result: SupplyResult }) {
+  return (
+    <View>
+      <Text style={s.h2}>Supply</Text>
+      <Text>
+        {t(
+          `${result.rectifier.label}; secondary peak ${formatEng(result.secondaryPeak, 'V')} at ${result.mainsFrequency} Hz behind ${formatEng(result.sourceResistance, 'Ω')}; ` +
+            `${result.capacitorInput ? 'capacitor input' : 'choke input'}. Rectifier peak ${formatEng(result.rectifierPeakCurrent, 'A')}, average ${formatEng(result.rectifier.averageCurrent, 'A')}; ` +
+            `reservoir ripple current ${formatEng(result.reservoirRippleCurrent, 'A')} rms; secondary ${formatEng(result.secondaryRmsCurrent, 'A')} rms.`,
+        )}
+      </Text>
+      <Table
+        head={['Node', 'Name', 'Idle', 'Full drive', 'Ripple p-p (full)', 'Ripple rms', 'Low / high mains', 'Turn-on peak']}
+        widths={[0.6, 1.6, 0.8, 0.8, 1, 0.8, 1.3, 0.9]}
+        rows={result.nodes.map((n) => [n.key, n.name, eng(n.dc, 'V', 4), eng(n.fullDrive.dc, 'V', 4), eng(n.fullDrive.ripplePeakToPeak, 'V'), eng(n.fullDrive.rippleRms, 'V'), `${eng(n.dcLowMains, 'V')} / ${eng(n.dcHighMains, 'V')}`, eng(n.unloadedPeak, 'V')])}
+      />
+      <Text style={s.h3}>Supply ratings</Text>
+      <Table
+        head={['Rating', 'Value', 'Limit', 'Status']}
+        widths={[2.6, 1, 1, 0.8]}
+        rows={result.ratings.map((r) => [r.label, eng(r.value, r.unit), r.limit === null ? '–' : eng(r.limit, r.unit), { text: r.status === 'not-checked' ? 'not checked' : r.status, colour: STATUS_COLOUR[r.status] }])}
+      />
+      {result.cautions.map((c, i) => (
+        <Text key={i} style={{ marginTop: 2 }}>{t(c)}</Text>
+      ))}
+      <Text style={{ marginTop: 2 }}>{t('Discharge every capacitor and measure it before service; local electrical codes and licensed practice come first.')}</Text>
+    </View>
+  );
+}
+
 function SupplySection({ project, chain }: { project: ProjectDetail; chain?: ChainResult | null }) {
   const sup = project.supply ?? {};
   const solved = chain?.supply;
+  if (solved?.circuit) {
+    return (
+      <View>
+        <SupplyCircuitSection result={solved.circuit} />
+        {chain && chain.heaters.length ? (
+          <>
+            <Text style={s.h3}>Heaters</Text>
+            <Table
+              head={['Supply', 'Voltage', 'Current', 'Power', 'Loads']}
+              widths={[1.6, 0.7, 0.7, 0.7, 2.4]}
+              rows={chain.heaters.map((h) => [h.name, eng(h.voltage, 'V'), eng(h.current, 'A'), eng(h.power, 'W'), h.loads.map((l) => `${l.designation} ${formatEng(l.current, 'A')}`).join(', ') || '–'])}
+            />
+          </>
+        ) : null}
+      </View>
+    );
+  }
   return (
     <View>
       <Text style={s.h2}>Supply</Text>
@@ -366,6 +418,7 @@ export function ProjectReport({ project, opts = {} }: { project: ProjectDetail; 
         />
         {chain(opts) ? <ChainSection chain={opts.chain!} /> : null}
         <SupplySection project={project} chain={opts.chain} />
+        {opts.tolerance?.length ? <ToleranceSection project={project} digests={opts.tolerance} /> : null}
         <Footer name={project.name} />
       </Page>
       {/* One page (or more, wrapping) per stage: laying out many stages inside a single page grows the layout work
@@ -381,6 +434,38 @@ export function ProjectReport({ project, opts = {} }: { project: ProjectDetail; 
 }
 
 const chain = (opts: ReportOptions) => Boolean(opts.chain && opts.chain.stages.length);
+
+const pctOf = (share: number) => `${(100 * share).toFixed(1)} %`;
+const spreadOf = (d: ToleranceDigest, key: string) => {
+  const m = d.metrics.find((x) => x.key === key);
+  if (!m) return '–';
+  return m.unit === '%' ? `${m.p1.toFixed(1)}–${m.p99.toFixed(1)} %` : m.unit === '' ? `${m.p1.toPrecision(3)}–${m.p99.toPrecision(3)}` : `${eng(m.p1, m.unit)} – ${eng(m.p99, m.unit)}`;
+};
+
+/** Tolerance runs (Explore): per stage, the spread of builds (1st–99th percentile) and the shares out of bounds. */
+function ToleranceSection({ project, digests }: { project: ProjectDetail; digests: ToleranceDigest[] }) {
+  const name = (id: number | null) => project.stages.find((st) => st.id === id)?.name ?? `stage ${id}`;
+  return (
+    <View wrap={false}>
+      <Text style={s.h2}>Tolerance runs</Text>
+      <Text style={s.muted}>{t('Builds with every part, the mains and the tube within their tolerances (Monte Carlo); ranges are the 1st to 99th percentile.')}</Text>
+      <Table
+        head={['Stage', 'Builds', 'Ia', 'Pa, % of rating', 'Gain', 'Over a rating', 'Outside bench tol.', 'Main factors (Ia)']}
+        widths={[1.3, 0.6, 1.3, 1, 0.9, 0.8, 0.8, 1.8]}
+        rows={digests.map((d) => [
+          name(d.stageId),
+          String(d.trials),
+          spreadOf(d, 'plateCurrent'),
+          spreadOf(d, 'plateDissipationShare'),
+          spreadOf(d, 'gain'),
+          { text: pctOf(d.overRatingShare), colour: d.overRatingShare > 0.01 ? STATUS_COLOUR.over : d.overRatingShare > 0 ? STATUS_COLOUR.near : STATUS_COLOUR.ok },
+          pctOf(d.outsideBenchShare),
+          d.topFactors.map((f) => f.label).join(', '),
+        ])}
+      />
+    </View>
+  );
+}
 
 export async function renderProjectReportPdf(project: ProjectDetail, opts: ReportOptions = {}): Promise<Buffer> {
   pickFonts();

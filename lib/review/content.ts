@@ -5,7 +5,15 @@ import type { RevisionSnapshot } from './types';
 
 export function revisionContent(snapshot: RevisionSnapshot) {
   return {
-    project: { id: snapshot.id, name: snapshot.name, description: snapshot.description, supply: snapshot.supply, benchTolerances: snapshot.benchTolerances },
+    project: {
+      id: snapshot.id,
+      name: snapshot.name,
+      description: snapshot.description,
+      supply: snapshot.supply,
+      // only when present, so the hashes of snapshots taken before supply circuits stay as they were
+      ...(snapshot.supplyCircuit ? { supplyCircuit: snapshot.supplyCircuit } : {}),
+      benchTolerances: snapshot.benchTolerances,
+    },
     stages: [...snapshot.stages]
       .sort((a, b) => a.position - b.position || a.id - b.id)
       .map((s) => ({

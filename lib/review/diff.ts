@@ -211,8 +211,8 @@ function resultChanges(before: SnapshotStage | undefined, after: SnapshotStage |
 export function diffSnapshots(base: RevisionSnapshot | null, next: RevisionSnapshot, baseNumber: number | null = null): RevisionDiff {
   const project = base
     ? changedLeaves(
-        { name: base.name, description: base.description, supply: base.supply, benchTolerances: base.benchTolerances },
-        { name: next.name, description: next.description, supply: next.supply, benchTolerances: next.benchTolerances },
+        { name: base.name, description: base.description, supply: base.supply, supplyCircuit: base.supplyCircuit ?? null, benchTolerances: base.benchTolerances },
+        { name: next.name, description: next.description, supply: next.supply, supplyCircuit: next.supplyCircuit ?? null, benchTolerances: next.benchTolerances },
         PROJECT_LABELS,
       )
     : [];

@@ -1,7 +1,7 @@
 // The frozen content of a revision: the project detail (per the shared API contract) at submit time, stages with
 // their inputs and the engine's results, so the review page and the PDF report need no database access.
 import type { StageAnalysis } from '@/lib/calc';
-import type { ProjectSupplyRecord } from '@/models/types';
+import type { ProjectSupplyCircuitRecord, ProjectSupplyRecord } from '@/models/types';
 
 export type SnapshotStage = {
   id: number;
@@ -29,6 +29,8 @@ export type RevisionSnapshot = {
   version: number;
   owner: { id: number; displayName: string } | null;
   supply: ProjectSupplyRecord;
+  /** the supply as a circuit (absent in snapshots taken before projects had one) */
+  supplyCircuit?: ProjectSupplyCircuitRecord | null;
   benchTolerances: Record<string, number>;
   updatedAt: string;
   stages: SnapshotStage[];

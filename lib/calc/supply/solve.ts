@@ -368,7 +368,6 @@ export function solvePrepared(p: PreparedSupply, extra: { idle?: number[]; full?
     ratings.push(check('rectifier-surge', 'Rectifier switch-on surge current', turnOnCurrent, L.surge, 'A', derating, 'Discharged capacitors switched on at the mains peak, high mains.'));
   if (L.maxReservoir !== null && net.capacitorInput)
     ratings.push(check('rectifier-reservoir', 'Reservoir capacitance for this rectifier', net.capacitance[0]!, L.maxReservoir, 'F', derating, 'A larger input capacitor raises the peak plate current.'));
-  if (L.maxReservoir !== null && !net.capacitorInput) ratings.push(check('rectifier-reservoir', 'Reservoir capacitance for this rectifier', 0, L.maxReservoir, 'F', derating, 'Choke input: no capacitor at the rectifier.'));
   ratings.push(check('secondary-current', `Secondary rms current${bridge ? '' : ' (each half)'}`, secondaryRms, p.circuit.secondary.currentRating ?? null, 'A', derating, bridge ? undefined : 'Each half of a centre-tapped winding carries every other pulse.'));
   for (const n of nodes) {
     if (n.unloadedPeak === null) continue;
