@@ -23,6 +23,6 @@ cat <<MSG
 MSG
 # one exploration worker beside the app (more on other machines: README, "Explore: tolerance runs, tube swaps, part searches")
 if [ "${EXPLORE_WORKER:-on}" != off ]; then
-  EXPLORE_EXIT_WITH_PARENT=1 node --import tsx scripts/worker.ts &
+  EXPLORE_PARENT_PID=$$ node --import tsx scripts/worker.ts &
 fi
 exec node node_modules/next/dist/bin/next start -p "$PORT" -H 0.0.0.0

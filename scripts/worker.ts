@@ -4,9 +4,6 @@
 import { DEFAULT_DATABASE_URL } from '../lib/db/sequelize';
 import { startExploreWorker } from '../lib/explore/worker';
 
-// captured before the (slow) start-up, so a parent that ends meanwhile is still noticed
-const startParent = process.ppid;
-
 async function main() {
   const worker = await startExploreWorker({
     databaseUrl: process.env.DATABASE_URL ?? DEFAULT_DATABASE_URL,
@@ -23,10 +20,15 @@ async function main() {
   };
   process.on('SIGTERM', () => void stop());
   process.on('SIGINT', () => void stop());
-  // started beside the app by npm start: end with it (the app's process replaces the shell that started this one)
-  if (process.env.EXPLORE_EXIT_WITH_PARENT === '1') {
+  // started beside the app by npm start: end with it (EXPLORE_PARENT_PID is the shell that became the app's server)
+  const parent = Number(process.env.EXPLORE_PARENT_PID);
+  if (Number.isInteger(parent) && parent > 1) {
     const check = () => {
-      if (process.ppid !== startParent) void stop();
+      try {
+        process.kill(parent, 0);
+      } catch {
+        void stop();
+      }
     };
     check();
     setInterval(check, 2000).unref();

@@ -16,8 +16,11 @@ import type { CreateExploreRun } from '@/lib/validation/explore';
 import { stageBodySchema } from '@/lib/validation/stage';
 import { ExploreRun, TubeModel, TubeType } from '@/models';
 import type { ExploreRunKind, ExploreRunStatus } from '@/models/explore-run';
+import { digestOf, type ToleranceDigest } from './digest';
 import type { ExploreSetup } from './execute';
 import { EXPLORE_QUEUE, EXPLORE_QUEUES } from './queue-names';
+
+export type { ToleranceDigest } from './digest';
 
 export type ExploreRunDTO = {
   id: number;
@@ -238,19 +241,6 @@ export async function cancelRun(actorId: number, id: number): Promise<ExploreRun
   return toDTO(r, null);
 }
 
-export type ToleranceDigest = {
-  runId: number;
-  stageId: number | null;
-  trials: number;
-  failed: number;
-  seed: number;
-  overRatingShare: number;
-  outsideBenchShare: number;
-  finishedAt: string | null;
-  metrics: { key: string; label: string; unit: string; nominal: number | null; p1: number; p50: number; p99: number }[];
-  topFactors: { label: string; rho: number }[];
-};
-
 /** The latest completed tolerance run of each stage for the given stage versions (a revision's or the current ones). */
 export async function toleranceDigests(stages: { id: number; version: number }[]): Promise<ToleranceDigest[]> {
   if (stages.length === 0) return [];
@@ -263,21 +253,7 @@ export async function toleranceDigests(stages: { id: number; version: number }[]
     const r = rows.find((x) => x.stageId === s.id && x.designVersion === s.version);
     const summary = (r?.result as { summary?: import('@/lib/calc/explore').ToleranceSummary } | null)?.summary;
     if (!r || !summary) continue;
-    const pick = ['plateCurrent', 'plateDissipationShare', 'gain', 'headroom', 'thd', 'outputPower'];
-    out.push({
-      runId: r.id,
-      stageId: r.stageId,
-      trials: summary.completed,
-      failed: summary.failed,
-      seed: summary.seed,
-      overRatingShare: summary.overRatingShare,
-      outsideBenchShare: summary.outsideBenchShare,
-      finishedAt: r.finishedAt?.toISOString() ?? null,
-      metrics: summary.metrics
-        .filter((m) => pick.includes(m.key) && m.stats)
-        .map((m) => ({ key: m.key, label: m.label, unit: m.unit, nominal: m.nominal, p1: m.stats!.percentiles[0]!.value, p50: m.stats!.percentiles[2]!.value, p99: m.stats!.percentiles[4]!.value })),
-      topFactors: (summary.sensitivity.find((x) => x.metric === 'plateCurrent')?.ranking ?? []).slice(0, 3).map((f) => ({ label: f.label, rho: f.rho })),
-    });
+    out.push(digestOf(r.id, r.stageId, r.finishedAt?.toISOString() ?? null, summary));
   }
   return out;
 }

@@ -1,4 +1,5 @@
 import 'server-only';
+import { toleranceDigests } from '@/lib/explore/service';
 import { Op, QueryTypes } from 'sequelize';
 import { ApiError } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
@@ -226,8 +227,11 @@ type RevisionDecisionMeta = NonNullable<NonNullable<ReportOptions['revision']>['
 /** The design report drawn from the frozen snapshot and stamped with the revision, its submitter and its decision. */
 async function revisionReport(rev: RevisionSummary & { snapshot: RevisionSnapshot }, decision: RevisionDecisionMeta | null) {
   const state = decision ? (decision.decision === 'approve' ? 'approved' : 'changes-requested') : rev.state;
+  // tolerance runs made for exactly the frozen stage versions (Explore), when there are any
+  const tolerance = await toleranceDigests(rev.snapshot.stages.map((st) => ({ id: st.id, version: st.version }))).catch(() => []);
   const pdf = await renderReportPdf({ ...rev.snapshot, watchers: [] } as unknown as ProjectDetail, {
     revision: { number: rev.number, contentHash: rev.contentHash, state, submittedBy: rev.submittedBy?.displayName ?? null, submittedAt: rev.submittedAt, decision },
+    tolerance,
   });
   const safe = rev.projectName.replace(/[^A-Za-z0-9]+/g, '-').replace(/^-|-$/g, '').toLowerCase() || 'project';
   return { pdf, filename: `anodyne-${safe}-revision-${rev.number}.pdf` };

@@ -3,7 +3,9 @@
 // answer with progress and results stored against the stage version they were made for.
 import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
+import { PDFParse } from 'pdf-parse';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import * as reportRoute from '@/app/api/projects/[id]/report/route';
 import * as runRoute from '@/app/api/explore/runs/[id]/route';
 import * as cancelRoute from '@/app/api/explore/runs/[id]/cancel/route';
 import * as runsRoute from '@/app/api/explore/runs/route';
@@ -96,6 +98,12 @@ describe('exploration jobs', { timeout: 180_000 }, () => {
     expect(run.progress).toEqual({ done: 4000, total: 4000 });
     expect(run.result.summary.completed).toBe(4000);
     expect(run.result.summary.metrics.map((m) => m.key)).toContain('plateCurrent');
+    // the design report carries the tolerance summary of the current stage version
+    const pdf = await call(reportRoute.GET, { as: 'reviewer', params: { id: String(stage!.projectId) } });
+    expect(pdf.status).toBe(200);
+    const text = (await new PDFParse({ data: new Uint8Array(await pdf.res.arrayBuffer()) }).getText()).text;
+    expect(text).toContain('Tolerance runs');
+    expect(text).toContain(stage!.name);
   });
 
   it('cancels a running run', async () => {

@@ -1,6 +1,7 @@
 // GET /api/projects/{id}/report – the design report PDF (stages, inputs, results, ratings, plots, chain and supply)
 import { parseParams, withUser } from '@/lib/api/with-user';
 import { solveChain } from '@/lib/calc/chain';
+import { toleranceDigests } from '@/lib/explore/service';
 import { chainStagesFor, getProject } from '@/lib/projects/service';
 import { renderReportPdf, ReportError, reportErrorResponse } from '@/lib/report/pdf';
 import { idParamSchema } from '@/lib/validation/auth';
@@ -13,7 +14,8 @@ export const GET = withUser('projects:read', async (_req, { params }) => {
   const chain = solveChain(await chainStagesFor(project), { ...project.supply, circuit: project.supplyCircuit }, { inputRms: 0.1 });
   let pdf: Buffer;
   try {
-    pdf = await renderReportPdf(project, { chain });
+    const tolerance = await toleranceDigests(project.stages.map((st) => ({ id: st.id, version: st.version })));
+    pdf = await renderReportPdf(project, { chain, tolerance });
   } catch (err) {
     if (err instanceof ReportError) return reportErrorResponse(err);
     throw err;
