@@ -27,25 +27,29 @@ export type ChainNetlist = {
 
 function slowestTimeConstant(c: Circuit): number {
   const resAt = new Map<string, number[]>();
+  const fixed = new Set(c.fixed.map((f) => c.find(f.node)));
   for (const r of c.resistors) {
     for (const n of [c.find(r.a), c.find(r.b)]) {
+      if (n === '0' || fixed.has(n)) continue; // ground and supplies are everyone's neighbours
       const list = resAt.get(n) ?? [];
       list.push(r.r);
       resAt.set(n, list);
     }
   }
+  // resistance seen at a node: its resistors in parallel (ground and supplies: 0)
+  const par = (node: string) => {
+    const list = resAt.get(c.find(node));
+    if (!list?.length) return 0;
+    return 1 / list.reduce((g, r) => g + 1 / r, 0);
+  };
   let tau = 0;
   for (const cap of c.capacitors) {
     if (INTERELECTRODE.test(cap.name)) continue;
-    const rs = [...(resAt.get(c.find(cap.a)) ?? []), ...(resAt.get(c.find(cap.b)) ?? [])];
-    const t = cap.c * (rs.length ? Math.max(...rs) : 1e6);
+    const t = cap.c * Math.max(par(cap.a) + par(cap.b), 1);
     // a source's DC block (1 F) starts charged and never moves: it sets no settling time
     if (t < 1e3) tau = Math.max(tau, t);
   }
-  for (const l of c.inductors) {
-    const rs = [...(resAt.get(c.find(l.a)) ?? []), ...(resAt.get(c.find(l.b)) ?? [])];
-    tau = Math.max(tau, (4 * l.l) / (rs.length ? Math.min(...rs) : 1000));
-  }
+  for (const l of c.inductors) tau = Math.max(tau, (4 * l.l) / Math.max(par(l.a) + par(l.b), 100));
   return tau;
 }
 
