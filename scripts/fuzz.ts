@@ -406,16 +406,24 @@ async function send(req: Req): Promise<void> {
   const started = performance.now();
   entry.total += 1;
   perRoute.set(key, entry);
-  let status: number | string;
+  let status: number | string = 'connection-error';
   let answer = '';
-  try {
-    const res = await fetch(req.url, { method: req.method, headers: req.headers, body: req.body, redirect: 'manual', signal: AbortSignal.timeout(30_000) });
-    status = res.status;
-    const text = await res.text().catch(() => '');
-    if (status >= 500) answer = text.slice(0, 300);
-  } catch (err) {
-    status = err instanceof Error && err.name === 'TimeoutError' ? 'timeout' : 'connection-error';
-    answer = err instanceof Error ? `${err.name}: ${err.message}` : String(err);
+  // a connection the server closed while the client reused it (e.g. after refusing an oversized body) is retried
+  // once on a fresh connection; a second failure is a finding
+  for (let attempt = 0; attempt < 2; attempt++) {
+    try {
+      const res = await fetch(req.url, { method: req.method, headers: attempt ? { ...req.headers, connection: 'close' } : req.headers, body: req.body, redirect: 'manual', signal: AbortSignal.timeout(30_000) });
+      status = res.status;
+      const text = await res.text().catch(() => '');
+      if (status >= 500) answer = text.slice(0, 300);
+      if (attempt) statusCounts.set('reset, retried', (statusCounts.get('reset, retried') ?? 0) + 1);
+      break;
+    } catch (err) {
+      const cause = err instanceof Error ? (err.cause as { code?: string } | undefined)?.code : undefined;
+      status = err instanceof Error && err.name === 'TimeoutError' ? 'timeout' : 'connection-error';
+      answer = err instanceof Error ? `${err.name}: ${err.message}${cause ? ` (${cause})` : ''}` : String(err);
+      if (status === 'timeout') break;
+    }
   }
   const took = performance.now() - started;
   entry.ms += took;
