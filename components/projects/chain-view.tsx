@@ -5,6 +5,7 @@ import { useEffect, useState } from 'react';
 import { Badge, StatusBadge } from '@/components/ui/badge';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Input } from '@/components/ui/input';
+import { FeedbackPanel } from '@/components/projects/feedback-panel';
 import type { ChainResult, ChainStageResult } from '@/lib/calc/chain';
 import type { ProjectDetail } from '@/lib/projects/service';
 import { fetchJson } from '@/lib/hooks/fetch-json';
@@ -37,48 +38,51 @@ export function ChainView({ project }: { project: ProjectDetail }) {
   const c = chain.data;
 
   return (
-    <Card data-testid="chain-view">
-      <CardHeader
-        title="Signal chain and supply"
-        actions={
-          <label className="flex items-center gap-2 text-xs text-muted" htmlFor="chain-input">
-            Chain input
-            <Input id="chain-input" className="num h-8 w-24" value={text} onChange={(e) => setText(e.target.value)} aria-invalid={Boolean(fieldError)} aria-describedby={fieldError ? 'chain-input-error' : undefined} />
-            V rms
-            {chain.isFetching ? <span className="text-muted" aria-live="polite">updating…</span> : null}
-          </label>
-        }
-      />
-      <CardBody className="space-y-5">
-        {fieldError ? <p id="chain-input-error" role="alert" className="text-xs text-over">Chain input {fieldError}</p> : null}
-        {chain.isError ? <p role="alert" className="text-sm text-over">{chain.error.message}</p> : null}
-        {!c ? (
-          <div className="h-40 animate-pulse rounded bg-rule/30" aria-busy="true" />
-        ) : c.stages.length === 0 ? (
-          <p className="text-sm text-muted">No stages yet: the chain is empty.</p>
-        ) : (
-          <>
-            <ChainSummary c={c} />
-            <ol className="flex flex-wrap items-stretch gap-y-3" data-testid="chain-stages">
-              {c.stages.map((s, i) => (
-                <li key={s.stageId} className="flex items-stretch">
-                  {i > 0 ? <span aria-hidden className="flex items-center px-1.5 text-lg text-muted">→</span> : null}
-                  <StageBlock s={s} first={c.firstClip?.stageId === s.stageId} upstreamClipped={c.stages.slice(0, i).some((u) => u.clipping)} />
-                </li>
+    <>
+      <Card data-testid="chain-view">
+        <CardHeader
+          title="Signal chain and supply"
+          actions={
+            <label className="flex items-center gap-2 text-xs text-muted" htmlFor="chain-input">
+              Chain input
+              <Input id="chain-input" className="num h-8 w-24" value={text} onChange={(e) => setText(e.target.value)} aria-invalid={Boolean(fieldError)} aria-describedby={fieldError ? 'chain-input-error' : undefined} />
+              V rms
+              {chain.isFetching ? <span className="text-muted" aria-live="polite">updating…</span> : null}
+            </label>
+          }
+        />
+        <CardBody className="space-y-5">
+          {fieldError ? <p id="chain-input-error" role="alert" className="text-xs text-over">Chain input {fieldError}</p> : null}
+          {chain.isError ? <p role="alert" className="text-sm text-over">{chain.error.message}</p> : null}
+          {!c ? (
+            <div className="h-40 animate-pulse rounded bg-rule/30" aria-busy="true" />
+          ) : c.stages.length === 0 ? (
+            <p className="text-sm text-muted">No stages yet: the chain is empty.</p>
+          ) : (
+            <>
+              <ChainSummary c={c} />
+              <ol className="flex flex-wrap items-stretch gap-y-3" data-testid="chain-stages">
+                {c.stages.map((s, i) => (
+                  <li key={s.stageId} className="flex items-stretch">
+                    {i > 0 ? <span aria-hidden className="flex items-center px-1.5 text-lg text-muted">→</span> : null}
+                    <StageBlock s={s} first={c.firstClip?.stageId === s.stageId} upstreamClipped={c.stages.slice(0, i).some((u) => u.clipping)} />
+                  </li>
+                ))}
+              </ol>
+            </>
+          )}
+          {c ? <SupplyResult c={c} project={project} /> : null}
+          {c && c.warnings.length ? (
+            <ul className="space-y-1 text-sm text-near" data-testid="chain-warnings">
+              {c.warnings.map((w, i) => (
+                <li key={i}>⚠ {w}</li>
               ))}
-            </ol>
-          </>
-        )}
-        {c ? <SupplyResult c={c} project={project} /> : null}
-        {c && c.warnings.length ? (
-          <ul className="space-y-1 text-sm text-near" data-testid="chain-warnings">
-            {c.warnings.map((w, i) => (
-              <li key={i}>⚠ {w}</li>
-            ))}
-          </ul>
-        ) : null}
-      </CardBody>
-    </Card>
+            </ul>
+          ) : null}
+        </CardBody>
+      </Card>
+      <FeedbackPanel projectId={project.id} inputRms={input} version={`${project.updatedAt}|${project.stages.map((s) => `${s.id}:${s.version}`).join(',')}`} />
+    </>
   );
 }
 

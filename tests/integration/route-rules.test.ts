@@ -87,6 +87,7 @@ export const RULES: Rule[] = [
     ok: 422,
   },
   { route: 'GET /api/projects/{id}/chain', handler: async () => (await import('@/app/api/projects/[id]/chain/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
+  { route: 'GET /api/projects/{id}/feedback', handler: async () => (await import('@/app/api/projects/[id]/feedback/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
   { route: 'GET /api/projects/{id}/report', handler: async () => (await import('@/app/api/projects/[id]/report/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
   { route: 'GET /api/stages/{id}', handler: async () => (await import('@/app/api/stages/[id]/route')).GET, request: { params: { id: '999999' } }, allowed: ALL, ok: 404 },
   {
