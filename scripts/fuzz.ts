@@ -412,7 +412,7 @@ async function send(req: Req): Promise<void> {
   // once on a fresh connection; a second failure is a finding
   for (let attempt = 0; attempt < 2; attempt++) {
     try {
-      const res = await fetch(req.url, { method: req.method, headers: attempt ? { ...req.headers, connection: 'close' } : req.headers, body: req.body, redirect: 'manual', signal: AbortSignal.timeout(30_000) });
+      const res = await fetch(req.url, { method: req.method, headers: req.headers, body: req.body, redirect: 'manual', signal: AbortSignal.timeout(30_000) });
       status = res.status;
       const text = await res.text().catch(() => '');
       if (status >= 500) answer = text.slice(0, 300);
