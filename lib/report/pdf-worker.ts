@@ -1,6 +1,8 @@
 // Worker-thread entry that draws report PDFs, so a long report never holds the server's request thread.
 // Started by lib/report/pdf.ts with `new Worker(new URL('./pdf-worker.ts', import.meta.url))`, which the
 // production build bundles as its own entry.
+import { readlinkSync } from 'node:fs';
+import { setPriority } from 'node:os';
 import { parentPort } from 'node:worker_threads';
 import type { ProjectDetail } from '@/lib/projects/service';
 import { renderProjectReportPdf, type ReportOptions } from './project-report';
@@ -10,6 +12,16 @@ export type PdfAnswer = { id: number; ok: true; pdf: Uint8Array } | { id: number
 
 const port = parentPort;
 if (!port) throw new Error('pdf-worker.ts runs only as a worker thread');
+
+// Draw at a lower CPU priority than the request thread: on a busy machine the scheduler then serves requests first
+// and the report takes the idle time. Linux applies a "process" priority to a single thread when given its id,
+// which /proc/thread-self names; elsewhere this is skipped.
+try {
+  const tid = Number(readlinkSync('/proc/thread-self').split('/').pop());
+  if (Number.isInteger(tid) && tid > 0) setPriority(tid, 5);
+} catch {
+  // no per-thread priority on this system: draw at normal priority
+}
 
 port.on('message', async (job: PdfJob) => {
   let answer: PdfAnswer;

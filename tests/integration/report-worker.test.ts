@@ -70,6 +70,8 @@ describe('report PDFs off the request thread', () => {
   let twenty = 0;
 
   it('keeps the event loop free and answers light requests while a 20-stage report renders', async () => {
+    // This test is about the event loop, not the budget: a busy test machine may draw slowly.
+    process.env.REPORT_TIME_BUDGET_MS = '170000';
     twenty = await projectWithStages('Twenty-stage report', 20);
     // Warm the pool with a one-stage report (the first report starts the drawing thread), so the measurement below
     // is the render itself.
@@ -107,6 +109,7 @@ describe('report PDFs off the request thread', () => {
 
     const r = await report;
     const renderMs = performance.now() - started;
+    delete process.env.REPORT_TIME_BUDGET_MS;
     await Promise.all([lagProbe, lightCalls]);
 
     expect(r.status, JSON.stringify(r.json)).toBe(200);
