@@ -12,6 +12,7 @@ import { fetchJson } from '@/lib/hooks/fetch-json';
 import { LIMIT_WORDS } from '@/lib/report/labels';
 import { formatEng, formatRatio } from '@/lib/format/number';
 import { cn } from '@/lib/utils';
+import { ChainLevels } from './chain-levels';
 import { chainQuerySchema } from '@/lib/validation/project';
 
 function Num({ v, unit, digits = 3, className }: { v: number | null | undefined; unit: string; digits?: number; className?: string }) {
@@ -69,6 +70,7 @@ export function ChainView({ project }: { project: ProjectDetail }) {
                   </li>
                 ))}
               </ol>
+              {c.endToEnd ? <ChainLevels analysis={c.endToEnd} stale={chain.isFetching} /> : null}
             </>
           )}
           {c ? <SupplyResult c={c} project={project} /> : null}
@@ -100,9 +102,9 @@ function ChainSummary({ c }: { c: ChainResult }) {
         <dt className="text-xs text-muted">Output at <Num v={c.inputRms} unit="V" /> rms in</dt>
         {c.firstClip && c.firstClip.chainInputRms < c.inputRms ? (
           <dd>
-            <b className="text-over">clipped</b>
+            <Num v={c.outputRms} unit="V" /> rms <b className="text-over">clipped</b>
             <span className="text-xs text-muted">
-              {' '}· largest clean output <Num v={c.totalGain !== null ? c.firstClip.chainInputRms * c.totalGain : null} unit="V" /> rms
+              {' '}· largest clean output <Num v={c.endToEnd?.sweep?.clip ? c.endToEnd.sweep.clip.outputAmplitude / Math.SQRT2 : null} unit="V" /> rms
             </span>
           </dd>
         ) : (
@@ -144,9 +146,9 @@ function StageBlock({ s, first, upstreamClipped }: { s: ChainStageResult; first:
           <dt className="text-muted">Gain</dt>
           <dd className="num text-right">{s.gain !== null ? `× ${formatRatio(Math.abs(s.gain))}${s.gain < 0 ? ' (inv.)' : ''}` : '–'}</dd>
           <dt className="text-muted">At its grid</dt>
-          <dd className="whitespace-nowrap text-right">{upstreamClipped ? <span className="text-muted">clipped before</span> : <><Num v={s.inputRms} unit="V" /> rms</>}</dd>
+          <dd className="whitespace-nowrap text-right"><Num v={s.inputRms} unit="V" /> rms{upstreamClipped ? <span className="text-muted"> (clipped before)</span> : null}</dd>
           <dt className="text-muted">Output</dt>
-          <dd className="whitespace-nowrap text-right">{upstreamClipped || s.clipping ? <span className="text-over">clipped</span> : <><Num v={s.outputRms} unit="V" /> rms</>}</dd>
+          <dd className="whitespace-nowrap text-right"><Num v={s.outputRms} unit="V" /> rms{s.clipping ? <b className="text-over"> clipped</b> : null}</dd>
           <dt className="text-muted">Headroom</dt>
           <dd className="text-right"><Num v={s.maxDrivePeak} unit="V" /> pk</dd>
           <dt className="text-muted">Clips from</dt>
