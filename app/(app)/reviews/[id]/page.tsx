@@ -6,12 +6,14 @@ import { DecisionForm } from '@/components/reviews/decision-form';
 import { STATE_WORDS } from '@/components/reviews/labels';
 import { FrozenResults } from '@/components/reviews/frozen-results';
 import { RevisionDiffView } from '@/components/reviews/revision-diff';
+import { ToleranceDigestCard } from '@/components/explore/tolerance-digest-card';
 import { Caution } from '@/components/shell/caution';
 import { PdfDownloadButton } from '@/components/shell/pdf-download-button';
 import { StatusBadge } from '@/components/ui/badge';
 import { Card, CardBody, CardHeader, PageHeader } from '@/components/ui/card';
 import { ApiError } from '@/lib/api/errors';
 import { requirePageUser } from '@/lib/auth/session';
+import { toleranceDigests } from '@/lib/explore/service';
 import { decisionBlocker, getRevision } from '@/lib/review/service';
 import { formatDateTime } from '@/lib/utils';
 
@@ -44,6 +46,7 @@ export default async function RevisionPage({ params, searchParams }: { params: P
         .join(', ')}).`
     : null;
   const blocker = decisionBlocker(user, rev);
+  const tolerance = await toleranceDigests(rev.snapshot.stages.map((st) => ({ id: st.id, version: st.version })));
   return (
     <div className="space-y-5">
       <PageHeader
@@ -114,6 +117,7 @@ export default async function RevisionPage({ params, searchParams }: { params: P
               ) : null}
             </CardBody>
           </Card>
+          <ToleranceDigestCard digests={tolerance} stages={rev.snapshot.stages} projectId={rev.projectId} />
           {rev.decision ? (
             <Card>
               <CardHeader title="Decision" actions={<StatusBadge status={rev.state} />} />
