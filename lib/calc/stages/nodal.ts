@@ -143,10 +143,11 @@ function residual(c: NodalCircuit, v: Float64Array, out: NodalState | null, jac:
 
 /**
  * Newton on the node voltages from `start` (a nearby solved state, or a rough guess for the DC point), with
- * step halving on the residual norm and each step limited to `maxStep` volts per node. Writes the result into
+ * step halving on the residual norm and each step limited to `maxStep` volts per node. Converged when the Newton
+ * step is below `tol` of each node voltage (at least 1 V): the step is taken and the error left is ~ its square. Writes the result into
  * `out` and returns true; false when it does not converge.
  */
-export function solveNodal(c: NodalCircuit, start: Float64Array, out: NodalState, maxStep = 50, maxIter = 60): boolean {
+export function solveNodal(c: NodalCircuit, start: Float64Array, out: NodalState, maxStep = 50, maxIter = 60, tol = 1e-9): boolean {
   const n = c.n;
   for (let i = 0; i < n; i++) V[i] = start[i] as number;
   let norm = residual(c, V, out, true);
@@ -158,7 +159,7 @@ export function solveNodal(c: NodalCircuit, start: Float64Array, out: NodalState
     for (let i = 0; i < n; i++) {
       const d = Math.abs(DV[i] as number);
       biggest = Math.max(biggest, d);
-      if (d > 1e-9 * Math.max(1, Math.abs(V[i] as number))) small = false;
+      if (d > tol * Math.max(1, Math.abs(V[i] as number))) small = false;
     }
     if (small) {
       // converged: after this step the error is ~ its square; the currents follow the step linearly

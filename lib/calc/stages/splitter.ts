@@ -69,6 +69,7 @@ export type HeadroomContext = {
   idle: NodalState;
 };
 
+const CYCLE_TOL = 1e-6;
 const dbOf = (ratio: number) => (ratio > 0 ? Math.max(-200, 20 * Math.log10(ratio)) : -200);
 const wrap180 = (deg: number) => {
   let d = deg % 360;
@@ -148,9 +149,9 @@ export function analyzeSplitter(spec: SplitterSpec): StageAnalysis {
     held.fixed[spec.driveSlot] = spec.driveBase(m) + vin;
   };
   const idleStart = op.v.slice(0, nh);
-  const solveHeld = (m: Record<string, number>, vin: number, start: Float64Array, out: NodalState) => {
+  const solveHeld = (m: Record<string, number>, vin: number, start: Float64Array, out: NodalState, tol = 1e-9) => {
     setHeld(m, vin);
-    if (!solveNodal(held, start, out, Math.max(5, 0.1 * input.supply), 100)) {
+    if (!solveNodal(held, start, out, Math.max(5, 0.1 * input.supply), 100, tol)) {
       // restart from idle with a smaller step limit
       if (!solveNodal(held, idleStart, out, 2, 400)) throw new CalcError('no-solution', 'The circuit could not be solved under drive.');
     }
@@ -226,17 +227,41 @@ export function analyzeSplitter(spec: SplitterSpec): StageAnalysis {
         const o = old[k] as NodalState;
         const a = samples[k - 1] as NodalState;
         const b = old[k - 1] as NodalState;
-        for (let i = 0; i < nh; i++) guess[i] = (o.v[i] as number) + (a.v[i] as number) - (b.v[i] as number);
+        if (k >= 3) {
+          // previous cycle + the change since it, extrapolated quadratically along the cycle
+          const a2 = samples[k - 2] as NodalState;
+          const b2 = old[k - 2] as NodalState;
+          const a3 = samples[k - 3] as NodalState;
+          const b3 = old[k - 3] as NodalState;
+          for (let i = 0; i < nh; i++) {
+            const d1 = (a.v[i] as number) - (b.v[i] as number);
+            const d2 = (a2.v[i] as number) - (b2.v[i] as number);
+            const d3 = (a3.v[i] as number) - (b3.v[i] as number);
+            guess[i] = (o.v[i] as number) + 3 * d1 - 3 * d2 + d3;
+          }
+        } else for (let i = 0; i < nh; i++) guess[i] = (o.v[i] as number) + (a.v[i] as number) - (b.v[i] as number);
         start = guess;
       } else if (old) start = (old[0] as NodalState).v;
-      else if (k >= 3) {
+      else if (k >= 5) {
+        // quartic extrapolation along the (smooth) waveform
+        const a1 = (samples[k - 1] as NodalState).v;
+        const a2 = (samples[k - 2] as NodalState).v;
+        const a3 = (samples[k - 3] as NodalState).v;
+        const a4 = (samples[k - 4] as NodalState).v;
+        const a5 = (samples[k - 5] as NodalState).v;
+        for (let i = 0; i < nh; i++) {
+          guess[i] = 5 * (a1[i] as number) - 10 * (a2[i] as number) + 10 * (a3[i] as number) - 5 * (a4[i] as number) + (a5[i] as number);
+        }
+        start = guess;
+      } else if (k >= 3) {
         const a = samples[k - 1] as NodalState;
         const b = samples[k - 2] as NodalState;
         const c = samples[k - 3] as NodalState;
         for (let i = 0; i < nh; i++) guess[i] = 3 * (a.v[i] as number) - 3 * (b.v[i] as number) + (c.v[i] as number);
         start = guess;
       } else start = k === 0 ? idle.v : (samples[k - 1] as NodalState).v;
-      const s = solveHeld(m, wave[k] ?? 0, start, samples[k] as NodalState);
+      // samples of a cycle: a last step below 1e-6 of the node voltage leaves ~1e-10 of it (quadratic convergence)
+      const s = solveHeld(m, wave[k] ?? 0, start, samples[k] as NodalState, CYCLE_TOL);
       for (const hv of spec.heldVoltages) sums[hv.key] = (sums[hv.key] as number) + hv.implied(held, s);
     }
     lastCycle.set(n, samples);
