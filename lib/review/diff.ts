@@ -78,6 +78,15 @@ const INPUT_LABELS: Record<string, [string, string]> = {
   'inputs.screen.bypass': ['Screen bypass', 'F'],
   'inputs.primaryImpedance': ['Primary impedance', 'Ω'],
   'inputs.primaryResistance': ['Primary DC resistance', 'Ω'],
+  'inputs.transformer.speakerLoad': ['Speaker load', 'Ω'],
+  'inputs.transformer.secondaryResistance': ['Secondary DC resistance', 'Ω'],
+  'inputs.transformer.primaryInductance': ['Primary inductance', 'H'],
+  'inputs.transformer.leakageInductance': ['Leakage inductance', 'H'],
+  'inputs.transformer.windingCapacitance': ['Primary winding capacitance', 'F'],
+  'inputs.feedback.resistor': ['Feedback resistor', 'Ω'],
+  'inputs.feedback.shuntResistor': ['Feedback shunt resistor', 'Ω'],
+  'inputs.feedback.capacitor': ['Step capacitor', 'F'],
+  'inputs.feedback.polarity': ['Feedback secondary terminal', ''],
   'inputs.plateToPlateImpedance': ['Plate-to-plate impedance', 'Ω'],
   'inputs.class': ['Class', ''],
 };
@@ -109,6 +118,12 @@ export const RESULT_FIELDS: { path: string; label: string; unit: string }[] = [
   { path: 'largeSignal.thdPercent', label: 'THD at the drive level', unit: '%' },
   { path: 'largeSignal.outputPower', label: 'Output power', unit: 'W' },
   { path: 'largeSignal.headroom.maxDrive', label: 'Headroom (max drive)', unit: 'V' },
+  { path: 'transformer.speakerPower', label: 'Power into the speaker', unit: 'W' },
+  { path: 'transformer.insertionLossDb', label: 'Transformer insertion loss (dB)', unit: '' },
+  { path: 'transformer.lowCutoff', label: 'Transformer low −3 dB', unit: 'Hz' },
+  { path: 'transformer.highCutoff', label: 'Transformer high −3 dB', unit: 'Hz' },
+  { path: 'transformer.outputImpedance', label: 'Output impedance at the speaker', unit: 'Ω' },
+  { path: 'transformer.dampingFactor', label: 'Damping factor (1 kHz, no global feedback)', unit: '' },
 ];
 
 function get(obj: unknown, path: string): unknown {
