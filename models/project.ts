@@ -1,4 +1,5 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+import type { ChainLink } from '../lib/calc/chain/input';
 import type { ProjectSupplyCircuitRecord, ProjectSupplyRecord } from './types';
 
 export class Project extends Model<InferAttributes<Project>, InferCreationAttributes<Project>> {
@@ -10,6 +11,8 @@ export class Project extends Model<InferAttributes<Project>, InferCreationAttrib
   declare ownerId: number | null;
   declare supply: CreationOptional<ProjectSupplyRecord>;
   declare supplyCircuit: CreationOptional<ProjectSupplyCircuitRecord | null>;
+  /** signal-chain links between stages (null: capacitor coupling in stage order) */
+  declare chainLinks: CreationOptional<ChainLink[] | null>;
   declare benchTolerances: CreationOptional<Record<string, number>>;
   declare version: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
@@ -26,6 +29,7 @@ export class Project extends Model<InferAttributes<Project>, InferCreationAttrib
         ownerId: { type: DataTypes.INTEGER, allowNull: true },
         supply: { type: DataTypes.JSONB, allowNull: false, defaultValue: {} },
         supplyCircuit: { type: DataTypes.JSONB, allowNull: true },
+        chainLinks: { type: DataTypes.JSONB, allowNull: true },
         benchTolerances: { type: DataTypes.JSONB, allowNull: false, defaultValue: {} },
         version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
         createdAt: DataTypes.DATE,

@@ -20,6 +20,7 @@ import { sequelize } from '@/lib/db';
 import { engineInputFor, stageDTOs, type StageDTO } from '@/lib/stages/service';
 
 export type { StageDTO } from '@/lib/stages/service';
+import type { ChainLink } from '@/lib/calc/chain/input';
 
 export type ProjectDetail = {
   id: number;
@@ -33,6 +34,8 @@ export type ProjectDetail = {
   supply: ProjectSupplyRecord;
   /** the supply as a circuit (null: the resistor ladder in `supply`) */
   supplyCircuit: ProjectSupplyCircuitRecord | null;
+  /** how the stages are joined (null: capacitor coupling in stage order) */
+  chainLinks: ChainLink[] | null;
   benchTolerances: Record<string, number>;
   updatedAt: string;
   stages: StageDTO[];
@@ -130,6 +133,7 @@ export async function getProject(id: number, transaction?: Transaction): Promise
     watchers: watcherUsers.map((u) => ({ id: u.id, displayName: u.displayName })),
     supply: project.supply ?? {},
     supplyCircuit: project.supplyCircuit ?? null,
+    chainLinks: project.chainLinks ?? null,
     benchTolerances: project.benchTolerances ?? {},
     updatedAt: project.updatedAt.toISOString(),
     stages: await stageDTOs(stages, transaction),
@@ -149,7 +153,7 @@ export async function createProject(actorId: number, raw: CreateProjectInput): P
   return getProject(project.id);
 }
 
-const DESIGN_FIELDS = ['name', 'description', 'supply', 'supplyCircuit', 'benchTolerances'] as const;
+const DESIGN_FIELDS = ['name', 'description', 'supply', 'supplyCircuit', 'chainLinks', 'benchTolerances'] as const;
 
 export async function updateProject(actorId: number, id: number, raw: UpdateProjectInput): Promise<ProjectDetail> {
   const patch = updateProjectSchema.parse(raw);

@@ -4,6 +4,7 @@ import { idNumber, idText, intCounter } from './ids';
 import { quantity } from './quantity';
 import { stageBodySchema } from './stage';
 import { supplyCircuitSchema } from './supply';
+import { chainLinkSchema } from '../calc/chain/input';
 import { CURVE_KINDS } from '@/lib/report/curve-kinds';
 import { BENCH_QUANTITY_KEYS, type BenchQuantity } from '@/lib/calc/bench';
 
@@ -88,6 +89,7 @@ export const updateProjectSchema = z
     supply: projectSupplySchema.optional(),
     /** the supply as a circuit; null returns the project to the resistor ladder */
     supplyCircuit: supplyCircuitSchema.nullable().optional(),
+    chainLinks: z.array(chainLinkSchema).max(40).nullable().optional(),
     benchTolerances: benchTolerancesSchema.optional(),
     watchers: z.array(idNumber()).max(50).optional(),
   })

@@ -374,8 +374,9 @@ export function buildChain(chain: ChainInput): BuiltChain {
   const linkedOutputs = new Set<string>();
   const fed = new Set<string>();
   links.forEach((l, i) => {
-    const from = byId.get(l.from)!;
-    const to = byId.get(l.to)!;
+    const from = byId.get(l.from);
+    const to = byId.get(l.to);
+    if (!from || !to) throw new CalcError('invalid-input', `Link ${i + 1} joins '${l.from}' to '${l.to}', but the chain has no element '${from ? l.to : l.from}'.`);
     const outName = l.output ?? from.main;
     const out = from.outputs[outName];
     if (!out) throw new CalcError('invalid-input', `Link ${i + 1}: '${l.from}' has no output '${outName}' (it has ${Object.keys(from.outputs).join(', ')}).`);

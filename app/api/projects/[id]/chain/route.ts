@@ -10,6 +10,6 @@ export const GET = withUser('projects:read', async (req, { params }) => {
   const { id } = parseParams(params, idParamSchema);
   const { input } = parseQuery(req, chainQuerySchema);
   const project = await getProject(id);
-  const chain = solveChain(await chainStagesFor(project), { ...project.supply, circuit: project.supplyCircuit }, { inputRms: input });
+  const chain = solveChain(await chainStagesFor(project), { ...project.supply, circuit: project.supplyCircuit }, { inputRms: input, links: project.chainLinks });
   return NextResponse.json({ chain });
 });

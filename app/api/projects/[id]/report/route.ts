@@ -11,7 +11,7 @@ export const runtime = 'nodejs';
 export const GET = withUser('projects:read', async (_req, { params }) => {
   const { id } = parseParams(params, idParamSchema);
   const project = await getProject(id);
-  const chain = solveChain(await chainStagesFor(project), { ...project.supply, circuit: project.supplyCircuit }, { inputRms: 0.1 });
+  const chain = solveChain(await chainStagesFor(project), { ...project.supply, circuit: project.supplyCircuit }, { inputRms: 0.1, links: project.chainLinks });
   let pdf: Buffer;
   try {
     const tolerance = await toleranceDigests(project.stages.map((st) => ({ id: st.id, version: st.version })));
