@@ -8,7 +8,7 @@ import { useQuery } from '@tanstack/react-query';
 import { useEffect, useMemo, useState } from 'react';
 import { useFieldArray, useForm, type FieldErrors } from 'react-hook-form';
 import { CartesianGrid, Line, LineChart, XAxis, YAxis } from 'recharts';
-import { AXIS_LABEL, AXIS_LINE, COLORS, ChartFrame, ChartLegend, GRID, TICK, tickNumber } from '@/components/charts/chart-parts';
+import { AXIS_LABEL, AXIS_LINE, COLORS, ChartFrame, ChartLegend, GRID, TICK, niceTicks, tickNumber } from '@/components/charts/chart-parts';
 import { Caution } from '@/components/shell/caution';
 import { Badge, StatusBadge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
@@ -449,6 +449,9 @@ export function SupplyWaveformChart({ result, drive, height = 240 }: { result: S
   const lo = Math.min(...all);
   const hi = Math.max(...all);
   const pad = Math.max((hi - lo) * 0.08, 0.5);
+  const yTicks = niceTicks(lo - pad, hi + pad, 5);
+  const msEnd = data[data.length - 1]?.ms ?? 1;
+  const tTicks = niceTicks(0, msEnd, 6).filter((v) => v <= msEnd + 1e-9);
   const lastName = result.nodes[result.nodes.length - 1]!.name;
   return (
     <ChartFrame
@@ -456,12 +459,12 @@ export function SupplyWaveformChart({ result, drive, height = 240 }: { result: S
       label="Reservoir and last node over three mains cycles"
       stale={false}
       height={height}
-      footer={<ChartLegend className="mt-1" entries={[{ label: `${result.nodes[0]!.name} (reservoir)`, color: COLORS.heater, kind: 'thick' }, { label: lastName, color: COLORS.dcline, kind: 'line' }]} />}
+      footer={<ChartLegend className="mt-1" entries={[{ label: /reservoir/i.test(result.nodes[0]!.name) ? result.nodes[0]!.name : `${result.nodes[0]!.name}${result.capacitorInput ? ' (reservoir)' : ' (first node)'}`, color: COLORS.heater, kind: 'thick' }, { label: lastName, color: COLORS.dcline, kind: 'line' }]} />}
     >
       <LineChart data={data} margin={{ top: 12, right: 12, bottom: 22, left: 6 }}>
         <CartesianGrid {...GRID} />
-        <XAxis type="number" dataKey="ms" domain={[0, data[data.length - 1]?.ms ?? 1]} tick={TICK} axisLine={AXIS_LINE} tickLine={AXIS_LINE} tickFormatter={tickNumber} label={{ value: 'Time (ms)', position: 'insideBottom', offset: -12, ...AXIS_LABEL }} />
-        <YAxis type="number" domain={[Math.floor(lo - pad), Math.ceil(hi + pad)]} tick={TICK} axisLine={AXIS_LINE} tickLine={AXIS_LINE} tickFormatter={tickNumber} width={48} label={{ value: 'Voltage (V)', angle: -90, position: 'insideLeft', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }} />
+        <XAxis type="number" dataKey="ms" domain={[0, msEnd]} ticks={tTicks} tick={TICK} axisLine={AXIS_LINE} tickLine={AXIS_LINE} tickFormatter={tickNumber} label={{ value: 'Time (ms)', position: 'insideBottom', offset: -12, ...AXIS_LABEL }} />
+        <YAxis type="number" domain={[yTicks[0]!, yTicks[yTicks.length - 1]!]} ticks={yTicks} tick={TICK} axisLine={AXIS_LINE} tickLine={AXIS_LINE} tickFormatter={tickNumber} width={48} label={{ value: 'Voltage (V)', angle: -90, position: 'insideLeft', offset: 12, style: { textAnchor: 'middle' }, ...AXIS_LABEL }} />
         <Line type="linear" dataKey="reservoir" stroke={COLORS.heater} strokeWidth={2} dot={false} isAnimationActive={false} />
         <Line type="linear" dataKey="last" stroke={COLORS.dcline} strokeWidth={1.5} dot={false} isAnimationActive={false} />
       </LineChart>
