@@ -508,20 +508,17 @@ function stateFromDc(cp: Compiled, dc: DcSolution): State {
  * The one-period transition matrix of the circuit linearised at the operating point (trapezoidal steps of h):
  * one-step matrix M (one column per state: a solve with the operating-point Jacobian), then M^N by squaring.
  */
-function periodTransition(cp: Compiled, dc: DcSolution, h: number, steps: number): Float64Array {
+/**
+ * One trapezoidal step's state transition for the circuit linearised where `w` holds a factored Jacobian:
+ * column j = the change of the next state for a unit change of state j (one solve per state).
+ */
+function stepMatrix(cp: Compiled, w: Work, h: number, M: Float64Array): void {
   const n = cp.size;
   const S = stateSize(cp);
   const nc = cp.caps.length;
   const nl = cp.inds.length;
-  const w = work(n);
-  const zeroS = new Float64Array(S);
-  const mode: Mode = { kind: 'tran', inductors: 'step', h, capV: zeroS.subarray(0, nc), capI: zeroS.subarray(nc, 2 * nc), indI: zeroS.subarray(2 * nc, 2 * nc + nl), indV: zeroS.subarray(2 * nc + nl) };
-  assemble(cp, mode, dc.fixed, dc.x, w.f, w.j);
-  if (!luFactor(w.j, n, w.perm)) throw new CalcError('no-solution', 'The chain\'s circuit matrix is singular (a node without a DC path?).');
-  const M = new Float64Array(S * S);
   const rhs = new Float64Array(n);
   const dx = new Float64Array(n);
-  const zero = new Float64Array(dc.fixed.length);
   const dv = (t: Term) => (t >= 0 ? (dx[t] as number) : 0);
   for (let j = 0; j < S; j++) {
     rhs.fill(0);
@@ -565,6 +562,21 @@ function periodTransition(cp: Compiled, dc: DcSolution, h: number, steps: number
       M[(2 * nc + nl + l) * S + j] = v1;
     }
   }
+}
+
+function periodTransition(cp: Compiled, dc: DcSolution, h: number, steps: number): Float64Array {
+  const n = cp.size;
+  const S = stateSize(cp);
+  const nc = cp.caps.length;
+  const nl = cp.inds.length;
+  const w = work(n);
+  const zeroS = new Float64Array(S);
+  const mode: Mode = { kind: 'tran', inductors: 'step', h, capV: zeroS.subarray(0, nc), capI: zeroS.subarray(nc, 2 * nc), indI: zeroS.subarray(2 * nc, 2 * nc + nl), indV: zeroS.subarray(2 * nc + nl) };
+  assemble(cp, mode, dc.fixed, dc.x, w.f, w.j);
+  if (!luFactor(w.j, n, w.perm)) throw new CalcError('no-solution', 'The chain\'s circuit matrix is singular (a node without a DC path?).');
+  const M = new Float64Array(S * S);
+  stepMatrix(cp, w, h, M);
+  const zero = 0;
   void zero;
   // M^steps (steps a power of two)
   let p = M;
@@ -624,7 +636,13 @@ export function steadyState(
   const x = new Float64Array(n);
   let newtonTotal = 0;
 
+  // with `sens`, the exact one-period transition of the circuit linearised along the solved waveform
+  let sens: { phi: Float64Array; m: Float64Array; tmp: Float64Array } | null = null;
   const runCycle = (state: State): State => {
+    if (sens) {
+      sens.phi.fill(0);
+      for (let i = 0; i < S; i++) sens.phi[i * S + i] = 1;
+    }
     if (cycles > 0) {
       const t = xsPrev ?? new Float64Array(N * n);
       xsPrev = xs;
@@ -660,6 +678,16 @@ export function steadyState(
       }
       newtonTotal += Math.max(it, 1);
       xs.set(x, (k - 1) * n);
+      if (sens) {
+        // the state enters the residual linearly: the Jacobian at the solved sample gives this step's transition
+        assemble(cp, mode, fixed, x, w.f, w.j);
+        if (luFactor(w.j, n, w.perm)) {
+          stepMatrix(cp, w, h, sens.m);
+          matMul(sens.m, sens.phi, S, sens.tmp);
+          sens.phi.set(sens.tmp);
+        }
+        w.factored = false;
+      }
       // trapezoidal state update
       for (let c = 0; c < nc; c++) {
         const e = cp.caps[c]!;
@@ -702,7 +730,32 @@ export function steadyState(
   };
   const dS = new Float64Array(S);
   const Hr = new Float64Array(S);
+  let exact = false;
+  let best = Infinity;
+  let stalled = 0;
   while (!converged(r, s0) && iter < maxShoot) {
+    let norm = 0;
+    for (let c = 0; c < nc; c++) norm = Math.max(norm, Math.abs(r[c] as number));
+    if (norm < 0.5 * best) {
+      best = norm;
+      stalled = 0;
+    } else stalled++;
+    if (!exact && (stalled >= 3 || iter >= 10)) {
+      // Broyden from the operating point's linearisation is not getting there (hard clipping, grid current):
+      // Newton on the exact transition along the current waveform from here on
+      exact = true;
+      sens = { phi: new Float64Array(S * S), m: new Float64Array(S * S), tmp: new Float64Array(S * S) };
+      xStart.set(xs.subarray((N - 1) * n, N * n));
+      sN = runCycle(s0);
+      iter++;
+      for (let i = 0; i < S; i++) r[i] = (sN[i] as number) - (s0[i] as number);
+    }
+    if (exact && sens) {
+      const a = Float64Array.from(sens.phi);
+      for (let i = 0; i < S; i++) a[i * S + i] = (a[i * S + i] as number) - 1;
+      const inv = invert(a, S);
+      if (inv) H = inv;
+    }
     // Newton/Broyden step: s ← s − H·r with H ≈ (Φ − I)⁻¹
     for (let i = 0; i < S; i++) {
       let acc = 0;
