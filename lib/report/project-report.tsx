@@ -5,6 +5,7 @@ import { Circle, Document, Font, Line, Page, Polyline, StyleSheet, Svg, Text, Vi
 import type { ChainResult } from '@/lib/calc/chain';
 import type { SupplyResult } from '@/lib/calc/supply/types';
 import type { StageAnalysis } from '@/lib/calc';
+import type { FeedbackResult } from '@/lib/calc/feedback/analysis';
 import type { ProjectDetail } from '@/lib/projects/service';
 import type { StageDTO } from '@/lib/stages/service';
 import type { ToleranceDigest } from '@/lib/explore/digest';
@@ -25,6 +26,8 @@ export type ReportOptions = {
   tolerance?: ToleranceDigest[];
   /** the chain + supply solution, when the caller has it (the report route does) */
   chain?: ChainResult | null;
+  /** the project's global feedback loop, solved (the report route passes it when an output stage carries one) */
+  feedback?: ReportFeedback | null;
   generatedAt?: Date;
 };
 
@@ -187,6 +190,18 @@ function resultRows(a: StageAnalysis): [string, string][] {
     ['Headroom (peak at grid)', `${eng(ls.headroom.maxDrive, 'V')}, ${LIMIT_WORDS[ls.headroom.limitedBy] ?? ls.headroom.limitedBy}`],
   );
   if (ls.outputPower !== null) rows.push(['Output power', eng(ls.outputPower, 'W')]);
+  const x = a.transformer;
+  if (x) {
+    rows.push(
+      ['Power into the speaker', x.speakerPower !== null ? eng(x.speakerPower, 'W') : '–'],
+      ['Transformer insertion loss', `${x.insertionLossDb.toFixed(2)} dB`],
+      ['Transformer low / high −3 dB', `${x.lowCutoff !== null ? eng(x.lowCutoff, 'Hz') : 'not modelled'} / ${x.highCutoff !== null ? eng(x.highCutoff, 'Hz') : 'not modelled'}`],
+      ['Output impedance at the speaker', eng(x.outputImpedance, 'Ω')],
+      ['Damping factor (1 kHz)', x.dampingFactor.toFixed(2)],
+    );
+    if (x.peak) rows.push(['Transformer resonance', `+${x.peak.db.toFixed(1)} dB at ${eng(x.peak.frequency, 'Hz')}`]);
+    for (const n of x.notModelled) rows.push(['Not modelled', n.message]);
+  }
   return rows;
 }
 
@@ -417,6 +432,7 @@ export function ProjectReport({ project, opts = {} }: { project: ProjectDetail; 
           })}
         />
         {chain(opts) ? <ChainSection chain={opts.chain!} /> : null}
+        {opts.feedback ? <FeedbackSection loop={opts.feedback} /> : null}
         <SupplySection project={project} chain={opts.chain} />
         {opts.tolerance?.length ? <ToleranceSection project={project} digests={opts.tolerance} /> : null}
         <Footer name={project.name} />
@@ -434,6 +450,76 @@ export function ProjectReport({ project, opts = {} }: { project: ProjectDetail; 
 }
 
 const chain = (opts: ReportOptions) => Boolean(opts.chain && opts.chain.stages.length);
+
+export type ReportFeedback = {
+  from: { name: string };
+  to: { name: string };
+  used: { resistor: number; shuntResistor: number; capacitor: number | null };
+  feedback: FeedbackResult;
+};
+
+// Global feedback: margins in words, the figures with and without the loop, and the loop gain over 1 Hz–1 MHz.
+function FeedbackSection({ loop }: { loop: ReportFeedback }) {
+  const fb = loop.feedback;
+  const deg = (v: number | null) => (v === null ? 'none' : `${v.toFixed(1)}°`);
+  const dbs = (v: number | null) => (v === null ? 'none' : `${v.toFixed(1)} dB`);
+  const r = fb.loopResponse;
+  const width = 480;
+  const height = 120;
+  const m = { l: 28, b: 14, t: 6, r: 6 };
+  const W = width - m.l - m.r;
+  const H = height - m.t - m.b;
+  const f0 = Math.log10(r[0]?.frequency ?? 1);
+  const f1 = Math.log10(r[r.length - 1]?.frequency ?? 1e6);
+  const x = (f: number) => m.l + ((Math.log10(f) - f0) / (f1 - f0 || 1)) * W;
+  const y = (db: number) => m.t + ((40 - Math.max(-40, Math.min(40, db))) / 80) * H;
+  return (
+    <View wrap={false}>
+      <Text style={s.h2}>{t(`Global feedback: ${loop.from.name} speaker terminal to ${loop.to.name} cathode`)}</Text>
+      <Text>
+        {t(
+          `Feedback resistor ${formatEng(loop.used.resistor, 'Ω')} into ${formatEng(loop.used.shuntResistor, 'Ω')}` +
+            (loop.used.capacitor ? `, step capacitor ${formatEng(loop.used.capacitor, 'F')}` : ', no step capacitor') +
+            `; loop gain at 1 kHz ${fb.loopGainDb.toFixed(1)} dB; phase margin ${deg(fb.phaseMargin)}, gain margin ${dbs(fb.gainMargin)}.`,
+        )}
+      </Text>
+      <Text style={{ color: fb.stability.verdict === 'stable' || fb.stability.verdict === 'no-loop-gain' ? INK : fb.stability.verdict === 'may-ring' ? STATUS_COLOUR.near : STATUS_COLOUR.over, marginTop: 2 }}>
+        {t(fb.stability.message)}
+      </Text>
+      {fb.stability.remedies.map((rem, i) => (
+        <Text key={i} style={{ marginTop: 1 }}>{t(`· ${rem}`)}</Text>
+      ))}
+      <Table
+        head={['', 'Without the loop', 'With the loop']}
+        widths={[2, 1.2, 1.2]}
+        rows={[
+          ['Gain, speaker per input volt', fb.openLoopGain.toFixed(2), fb.closedLoopGain.toFixed(2)],
+          ['Output impedance at the speaker', eng(fb.outputImpedance.open, 'Ω'), eng(fb.outputImpedance.closed, 'Ω')],
+          ['Damping factor (1 kHz)', fb.dampingFactor.open.toFixed(2), fb.dampingFactor.closed.toFixed(2)],
+          [`THD at ${eng(fb.distortion.outputPower, 'W')}`, `${fb.distortion.open.thdPercent.toFixed(3)} %`, fb.distortion.closed ? `${fb.distortion.closed.thdPercent.toFixed(3)} %` : '–'],
+          ['Bandwidth (−3 dB)', `${eng(fb.bandwidth.open.low, 'Hz')} – ${eng(fb.bandwidth.open.high, 'Hz')}`, `${eng(fb.bandwidth.closed.low, 'Hz')} – ${eng(fb.bandwidth.closed.high, 'Hz')}`],
+        ]}
+      />
+      <Text style={{ marginTop: 2 }}>
+        {t(
+          `Low end: unity gain ${eng(fb.stability.low.unityGainFrequency, 'Hz')}, phase margin ${deg(fb.stability.low.phaseMargin)}. High end: unity gain ${eng(fb.stability.high.unityGainFrequency, 'Hz')}, phase margin ${deg(fb.stability.high.phaseMargin)}. ` +
+            `Square wave overshoot: ${fb.squareWaves.map((w) => `${formatEng(w.frequency, 'Hz')} ${w.overshootPercent.toFixed(1)} %`).join(', ') || '–'}.`,
+        )}
+      </Text>
+      {r.length > 1 ? (
+        <View style={{ marginTop: 4 }}>
+          <Svg width={width} height={height}>
+            <Line x1={m.l} y1={m.t + H} x2={m.l + W} y2={m.t + H} stroke={INK} strokeWidth={0.6} />
+            <Line x1={m.l} y1={m.t} x2={m.l} y2={m.t + H} stroke={INK} strokeWidth={0.6} />
+            <Line x1={m.l} y1={y(0)} x2={m.l + W} y2={y(0)} stroke={RULE} strokeWidth={0.5} strokeDasharray="2,2" />
+            <Polyline points={r.map((q) => `${x(q.frequency).toFixed(1)},${y(q.magnitudeDb).toFixed(1)}`).join(' ')} stroke="#1f6fb2" strokeWidth={1} fill="none" />
+          </Svg>
+          <Text style={{ fontSize: 7, color: MUTED }}>{t('Loop gain 1 Hz–1 MHz (log), +40 dB at top, −40 dB at the bottom; dashed line at 0 dB (unity).')}</Text>
+        </View>
+      ) : null}
+    </View>
+  );
+}
 
 const pctOf = (share: number) => `${(100 * share).toFixed(1)} %`;
 const spreadOf = (d: ToleranceDigest, key: string) => {
