@@ -89,7 +89,7 @@ test('mail queued through either server is sent exactly once while both drain th
   const emails = Array.from({ length: 8 }, (_, i) => `${tag}-${i}@anodyne.test`);
   await Promise.all(
     emails.map(async (email, i) => {
-      const res = await ctx.post(`${i % 2 ? B : A}/api/admin/invitations`, { data: { email, displayName: `Scale ${i}`, role: 'technician' } });
+      const res = await ctx.post(`${i % 2 ? B : A}/api/admin/invitations`, { data: { email, displayName: `Scale ${i}`, role: 'designer' } });
       expect(res.status()).toBe(201);
     }),
   );
