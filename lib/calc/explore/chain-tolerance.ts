@@ -96,7 +96,7 @@ export function prepareChainTolerance(chain: ChainStage[], supply: ChainSupply, 
 
 export type ChainTrialBlock = { from: number; to: number; factors: Float64Array[]; metrics: Float64Array[]; overRating: Uint8Array; failures: Record<string, number> };
 
-const idleOf = (input: StageInput) => analyzeStage({ ...input, drive: { ...input.drive, amplitude: 0 } } as StageInput, { quick: true });
+const idleOf = (input: StageInput) => analyzeStage(input, { quick: true, operatingPointOnly: true });
 
 export function runChainTrials(setup: ChainToleranceSetup, from: number, to: number): ChainTrialBlock {
   const n = Math.max(0, to - from);

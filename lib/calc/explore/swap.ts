@@ -69,10 +69,18 @@ function idle(input: StageInput): StageAnalysis | null {
   }
 }
 
+function opOnly(input: StageInput): StageAnalysis | null {
+  try {
+    return analyzeStage(input, { quick: true, operatingPointOnly: true });
+  } catch {
+    return null;
+  }
+}
+
 /** Solves part `path` (searched on a log scale within [lo, hi]) so that `f(analysis)` reaches zero; null without a bracket. */
 function solvePart(input: StageInput, path: string, lo: number, hi: number, f: (a: StageAnalysis) => number): number | null {
   const g = (logx: number) => {
-    const a = idle(setPath(input, path, Math.exp(logx)));
+    const a = opOnly(setPath(input, path, Math.exp(logx)));
     return a ? f(a) : NaN;
   };
   // sample the range to find a sign change that has analyses on both sides

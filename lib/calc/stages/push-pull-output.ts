@@ -12,7 +12,7 @@ import { solveNetwork } from './network';
 import { modelEvaluations } from '../models/registry';
 import { solveDenseInPlace } from './newton';
 import { screenParts } from './pentode-amplifier';
-import { checkIdle, EMPTY_PLOT, operatingPointOf, QUICK_SAMPLES, stagePlot, type AnalyzeOptions } from './single-tube';
+import { checkIdle, EMPTY_PLOT, operatingPointAnalysis, operatingPointOf, QUICK_SAMPLES, stagePlot, type AnalyzeOptions } from './single-tube';
 import { analyzeTransformer, turnsRatio } from '../transformer';
 
 /*
@@ -354,6 +354,7 @@ export function analyzePushPullOutput(input: PushPullOutputInput, options?: Anal
   );
   checkIdle(op, input.supply);
   const opPoint = operatingPointOf(op, model);
+  if (options?.operatingPointOnly) return operatingPointAnalysis(input.topology, opPoint, [opPoint, { ...opPoint }]);
   const net: PPNet = { model, supply: input.supply, halfRdc, raa, gridBias, rk, rkAc: bypassed ? 0 : rk, screen };
   const m0: PPMeans = { ik: 2 * op.ik, ig2: 2 * op.ig2 };
   // idle push-pull state: both tubes at the single-tube idle point (a Newton start)

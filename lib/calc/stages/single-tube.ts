@@ -42,7 +42,25 @@ export type SingleTubeSpec = {
  * response curve (the cut-off frequencies are still found) and solves the drive cycle on 64 samples instead of 256
  * (harmonics 2–10 stay below the 32-sample Nyquist limit).
  */
-export type AnalyzeOptions = { quick?: boolean };
+export type AnalyzeOptions = {
+  quick?: boolean;
+  /** only the idle operating point (for supply solutions that need the stages' currents): every other result is zero or empty */
+  operatingPointOnly?: boolean;
+};
+
+/** The analysis shape with only the operating point filled in (`operatingPointOnly`). */
+export function operatingPointAnalysis(topology: string, op: OperatingPoint, perTube: OperatingPoint[]): StageAnalysis {
+  return {
+    topology,
+    operatingPoint: op,
+    perTube,
+    smallSignal: { gm: 0, ra: 0, mu: 0, gain: 0, gainDb: 0, outputImpedance: 0, inputCapacitance: 0, lowCutoff: null, highCutoff: null, response: [] },
+    largeSignal: { drive: 0, outputAmplitude: 0, harmonics: [], thdPercent: 0, thd3PointPercent: 0, thd5PointPercent: 0, dcShift: 0, outputPower: null, headroom: { maxDrive: 0, limitedBy: 'none', outputSwing: 0 }, waveform: { t: [], input: [], output: [] } },
+    ratings: [],
+    plot: { ...EMPTY_PLOT, operatingPoint: { va: op.plateCathodeVoltage, ia: op.plateCurrent } },
+    warnings: [],
+  };
+}
 export const QUICK_SAMPLES = 64;
 export const EMPTY_PLOT: StagePlot = { dcLoadLine: [], acLoadLine: [], operatingPoint: { va: 0, ia: 0 }, paMax: [], curves: [], transfer: [], screenVoltage: null };
 
@@ -114,6 +132,7 @@ export function analyzeSingleTube(spec: SingleTubeSpec): StageAnalysis {
   checkIdle(op, input.supply);
   const m0: Means = { ia: op.ia, ig2: op.ig2, ik: op.ik };
   const opPoint = operatingPointOf(op, model);
+  if (spec.options?.operatingPointOnly) return operatingPointAnalysis(spec.topology, opPoint, [opPoint]);
   const vak0 = opPoint.plateCathodeVoltage;
   const vgk0 = opPoint.gridCathodeVoltage;
   const vg2k0 = op.vg2 - op.vk;
