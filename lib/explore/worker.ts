@@ -2,6 +2,7 @@
 // the worker-thread pool, and stores the result. Any number of workers, on any machine, may share one database.
 // A worker whose heartbeat goes stale (killed, machine lost) is noticed by the others, which fail its pg-boss job
 // so that pg-boss hands it out again; the claim's attempt number keeps a late finisher from overwriting the retry.
+import { setMaxListeners } from 'node:events';
 import os from 'node:os';
 import { QueryTypes, type Sequelize } from 'sequelize';
 import { CalcError } from '../calc/errors';
@@ -54,6 +55,8 @@ export async function startExploreWorker(options: WorkerOptions) {
     log(`run ${run.id} (${run.kind}, attempt ${run.attempt}) started`);
     const t0 = Date.now();
     const ctl = new AbortController();
+    // one abort listener per queued thread task
+    setMaxListeners(0, ctl.signal);
     let progress = { done: 0, total: 0 };
     let lost = false;
     const beat = async () => {
