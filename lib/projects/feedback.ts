@@ -21,6 +21,14 @@ export type ProjectFeedback = {
   warnings: string[];
 };
 
+/** The project's own links when it has them (and they name its stages), else the default coupling in stage order. */
+function linksFor(project: ProjectDetail, elements: Array<{ id: string; topology: string }>) {
+  const own = (project as { chainLinks?: Array<{ from: string | number; to: string | number }> | null }).chainLinks;
+  const ids = new Set(elements.map((e) => e.id));
+  if (own && own.length && own.every((l) => ids.has(String(l.from)) && ids.has(String(l.to)))) return own;
+  return defaultLinks(elements);
+}
+
 export async function projectFeedback(project: ProjectDetail, query: FeedbackQuery): Promise<ProjectFeedback | null> {
   const stages = (await chainStagesFor(project)).sort((a, b) => a.position - b.position);
   const outputStage = [...stages].reverse().find((s) => s.input && (s.input.topology === 'single-ended-output' || s.input.topology === 'push-pull-output') && s.input.feedback);
@@ -39,7 +47,7 @@ export async function projectFeedback(project: ProjectDetail, query: FeedbackQue
   const raw = {
     input: { amplitude: query.input * Math.SQRT2, frequency: 1000 },
     stages: elements,
-    links: defaultLinks(elements),
+    links: linksFor(project, elements),
     feedback: { from: String(outputStage.id), to: String(first.id), ...used, polarity: stored.polarity },
   } as unknown as ChainInputRaw;
   const parsed = chainInputSchema.safeParse(raw);
