@@ -4,10 +4,13 @@
 import { readlinkSync } from 'node:fs';
 import { setPriority } from 'node:os';
 import { parentPort } from 'node:worker_threads';
+import { solveChain, type ChainOptions, type ChainStage, type ChainSupply } from '@/lib/calc/chain';
 import type { ProjectDetail } from '@/lib/projects/service';
 import { renderProjectReportPdf, type ReportOptions } from './project-report';
 
-export type PdfJob = { id: number; project: ProjectDetail; opts: ReportOptions };
+/** What the chain section needs; the chain is solved here, in the thread, as it can take seconds for many stages. */
+export type ChainInput = { stages: ChainStage[]; supply: ChainSupply; options: ChainOptions };
+export type PdfJob = { id: number; project: ProjectDetail; opts: ReportOptions; chainInput?: ChainInput };
 export type PdfAnswer = { id: number; ok: true; pdf: Uint8Array } | { id: number; ok: false; message: string };
 
 const port = parentPort;
@@ -26,7 +29,18 @@ try {
 port.on('message', async (job: PdfJob) => {
   let answer: PdfAnswer;
   try {
-    const pdf = await renderProjectReportPdf(job.project, job.opts);
+    let opts = job.opts;
+    if (job.chainInput) {
+      const { stages, supply, options } = job.chainInput;
+      let chain: ReportOptions['chain'] = null;
+      try {
+        chain = solveChain(stages, supply, options);
+      } catch {
+        // a chain the engine cannot solve is left out of the report; the stage pages still carry each stage's result
+      }
+      opts = { ...opts, chain };
+    }
+    const pdf = await renderProjectReportPdf(job.project, opts);
     answer = { id: job.id, ok: true, pdf: new Uint8Array(pdf.buffer, pdf.byteOffset, pdf.byteLength) };
   } catch (err) {
     answer = { id: job.id, ok: false, message: err instanceof Error ? err.message : String(err) };

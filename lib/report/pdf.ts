@@ -8,7 +8,7 @@ import { Worker } from 'node:worker_threads';
 import { errorResponse } from '@/lib/api/errors';
 import type { ProjectDetail } from '@/lib/projects/service';
 import { MAX_REPORT_STAGES } from './limits';
-import type { PdfAnswer, PdfJob } from './pdf-worker';
+import type { ChainInput, PdfAnswer, PdfJob } from './pdf-worker';
 import type { ReportOptions } from './project-report';
 
 /** Why a report could not be drawn; routes answer it in the one error shape (see `reportErrorStatus`). */
@@ -88,7 +88,7 @@ class PdfPool {
   private queue: Pending[] = [];
   private nextId = 1;
 
-  async render(project: ProjectDetail, opts: ReportOptions): Promise<Buffer> {
+  async render(project: ProjectDetail, opts: ReportOptions, chainInput?: ChainInput): Promise<Buffer> {
     if (project.stages.length > MAX_REPORT_STAGES) {
       throw new ReportError('report_too_large', `A report covers at most ${MAX_REPORT_STAGES} stages; this project has ${project.stages.length}.`);
     }
@@ -97,7 +97,7 @@ class PdfPool {
     }
     return new Promise<Buffer>((resolve, reject) => {
       const budget = budgetMs();
-      const p: Pending = { job: { id: this.nextId++, project, opts }, resolve, reject, budget };
+      const p: Pending = { job: { id: this.nextId++, project, opts, chainInput }, resolve, reject, budget };
       p.timer = setTimeout(() => this.expire(p), budget);
       p.timer.unref();
       this.queue.push(p);
@@ -166,8 +166,11 @@ class PdfPool {
 
 const g = globalThis as unknown as { anodynePdfPool?: PdfPool };
 
-/** Draws the design report (or, with `opts.revision`, a revision's summary) off the request thread. */
-export function renderReportPdf(project: ProjectDetail, opts: ReportOptions = {}): Promise<Buffer> {
+/**
+ * Draws the design report (or, with `opts.revision`, a revision's summary) off the request thread. Pass `chainInput`
+ * rather than a solved `opts.chain`: the chain is then solved in the drawing thread too.
+ */
+export function renderReportPdf(project: ProjectDetail, opts: ReportOptions = {}, chainInput?: ChainInput): Promise<Buffer> {
   g.anodynePdfPool ??= new PdfPool();
-  return g.anodynePdfPool.render(project, opts);
+  return g.anodynePdfPool.render(project, opts, chainInput);
 }

@@ -1,8 +1,8 @@
 // GET /api/projects/{id}/report – the design report PDF (stages, inputs, results, ratings, plots, chain and supply)
 import { parseParams, withUser } from '@/lib/api/with-user';
-import { solveChain } from '@/lib/calc/chain';
 import { toleranceDigests } from '@/lib/explore/service';
 import { chainStagesFor, getProject } from '@/lib/projects/service';
+import { projectFeedback } from '@/lib/projects/feedback';
 import { renderReportPdf, ReportError, reportErrorResponse } from '@/lib/report/pdf';
 import { idParamSchema } from '@/lib/validation/auth';
 
@@ -11,11 +11,14 @@ export const runtime = 'nodejs';
 export const GET = withUser('projects:read', async (_req, { params }) => {
   const { id } = parseParams(params, idParamSchema);
   const project = await getProject(id);
-  const chain = solveChain(await chainStagesFor(project), { ...project.supply, circuit: project.supplyCircuit }, { inputRms: 0.1, links: project.chainLinks });
+  // The chain is solved in the drawing thread with the report: for many stages it takes seconds of CPU.
+  const chainInput = { stages: await chainStagesFor(project), supply: { ...project.supply, circuit: project.supplyCircuit }, options: { inputRms: 0.1, links: project.chainLinks } };
   let pdf: Buffer;
   try {
     const tolerance = await toleranceDigests(project.stages.map((st) => ({ id: st.id, version: st.version })));
-    pdf = await renderReportPdf(project, { chain, tolerance });
+    // the global feedback loop, when an output stage carries one (a loop that cannot be solved leaves its section out)
+    const feedback = await projectFeedback(project, { input: 0.1 }).catch(() => null);
+    pdf = await renderReportPdf(project, { tolerance, feedback }, chainInput);
   } catch (err) {
     if (err instanceof ReportError) return reportErrorResponse(err);
     throw err;
