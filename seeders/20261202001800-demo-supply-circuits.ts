@@ -11,12 +11,10 @@ export const DEMO_SUPPLY_CIRCUITS: { project: string; circuit: SupplyCircuitInpu
     project: 'Crunch preamp (two 12AX7 stages + cathode follower)',
     circuit: {
       mains: { voltage: 230, frequency: 50, variation: 0.1 },
-      secondary: { voltage: 250, resistance: 120, primaryResistance: 25, currentRating: 0.05 },
+      secondary: { voltage: 240, resistance: 120, primaryResistance: 25, currentRating: 0.05 },
       rectifier: { kind: 'silicon-bridge', type: '1N4007' },
-      reservoir: { capacitance: '47u', voltageRating: 400, key: 'B+0', name: 'Reservoir' },
+      reservoir: { capacitance: '47u', voltageRating: 400, key: 'B+1', name: 'Preamp feed' },
       sections: [
-        { kind: 'resistor', resistance: '4k7', powerRating: 1 },
-        { kind: 'capacitor', capacitance: '47u', voltageRating: 400, key: 'B+1', name: 'Preamp feed' },
         { kind: 'resistor', resistance: '10k', powerRating: 0.5 },
         { kind: 'capacitor', capacitance: '22u', voltageRating: 400, key: 'B+2', name: 'Gain stage and follower' },
         { kind: 'resistor', resistance: '22k', powerRating: 0.5 },

@@ -401,7 +401,7 @@ function Arrow({ label }: { label?: string }) {
 export function SupplyNodesTable({ result }: { result: SupplyResult }) {
   return (
     <div className="overflow-x-auto">
-      <table className="w-full text-sm" data-testid="supply-nodes">
+      <table className="w-full text-sm" data-testid="supply-circuit-nodes">
         <thead className="border-b border-rule text-left text-xs text-muted">
           <tr>
             <th className="px-2 py-1 font-medium">Node</th>
