@@ -357,7 +357,7 @@ function ChainSection({ chain }: { chain: ChainResult }) {
           c.name,
           c.gain !== null ? c.gain.toFixed(2) : '–',
           eng(c.inputRms, 'V'),
-          eng(c.outputRms, 'V'),
+          { text: `${eng(c.outputRms, 'V')}${c.clipping ? ' clipped' : ''}`, colour: c.clipping ? STATUS_COLOUR.over : INK },
           { text: c.clipsAtChainInputRms !== null ? `${eng(c.clipsAtChainInputRms, 'V')} rms` : '–', colour: c.clipping ? STATUS_COLOUR.over : INK },
           `${eng(c.assumedSupply, 'V')} → ${eng(c.solvedSupply, 'V')}`,
         ])}
@@ -368,6 +368,32 @@ function ChainSection({ chain }: { chain: ChainResult }) {
             (chain.firstClip ? `First to clip: ${chain.firstClip.name}, from ${formatEng(chain.firstClip.chainInputRms, 'V')} rms at the chain input (${LIMIT_WORDS[chain.firstClip.limitedBy] ?? chain.firstClip.limitedBy}).` : 'No stage reports a clipping limit.'),
         )}
       </Text>
+      {chain.endToEnd ? (
+        <Text style={{ marginTop: 3 }}>
+          {t(
+            `Output ${formatEng(chain.endToEnd.output.amplitude / Math.SQRT2, 'V')} rms, THD ${chain.endToEnd.output.thdPercent.toFixed(2)} %` +
+              (chain.endToEnd.output.power !== null ? `, ${formatEng(chain.endToEnd.output.power, 'W')} into the load` : '') +
+              ' (every stage driven by the waveform of the one before it).',
+          )}
+        </Text>
+      ) : null}
+      {chain.endToEnd?.sweep && chain.endToEnd.sweep.points.length ? (
+        <>
+          <Text style={{ marginTop: 4 }}>{t('Level sweep (input and output in dBV; every fourth level and the clip point):')}</Text>
+          <Table
+            head={['In (dBV)', 'Out (dBV)', 'THD', 'State']}
+            widths={[1, 1, 1, 1.5]}
+            rows={[
+              ...chain.endToEnd.sweep.points
+                .filter((_, i, all) => i % 4 === 0 || i === all.length - 1)
+                .map((p) => [p.inputDbv.toFixed(1), p.outputDbv.toFixed(1), `${p.thdPercent.toFixed(2)} %`, { text: p.clipped ? 'past the clip point' : 'clean', colour: p.clipped ? STATUS_COLOUR.over : INK }]),
+              ...(chain.endToEnd.sweep.clip
+                ? [[chain.endToEnd.sweep.clip.inputDbv.toFixed(1), '–', '–', { text: `clip point (${chain.endToEnd.sweep.clip.stage})`, colour: STATUS_COLOUR.over }]]
+                : []),
+            ]}
+          />
+        </>
+      ) : null}
       {chain.warnings.map((w, i) => (
         <Text key={i} style={{ color: STATUS_COLOUR.near }}>{t(w)}</Text>
       ))}
