@@ -177,6 +177,7 @@ const ROUTES: Route[] = [
   { method: 'GET', path: '/api/projects', query: { search: q.oneOf('amp', 'x'), status: q.oneOf('draft', 'approved', ''), archived: q.oneOf('true', 'false', 'all') }, weight: 2 },
   { method: 'GET', path: '/api/projects/{project}' },
   { method: 'GET', path: '/api/projects/{project}/chain', query: { input: q.oneOf('100m', '1', '0.5') } },
+  { method: 'GET', path: '/api/projects/{project}/feedback', query: { input: q.oneOf('100m', '1'), resistor: q.oneOf('4k7', '10k'), shuntResistor: q.oneOf('470', '1k'), capacitor: q.oneOf('none', '1n', '100p') } },
   { method: 'GET', path: '/api/projects/{project}/revisions' },
   { method: 'GET', path: '/api/projects/{project}/bench-checks', query: { failing: q.oneOf('1', 'true', '0'), verdict: q.oneOf('pass', 'check', 'fail'), stageId: q.id('stage'), limit: q.oneOf('1', '200') } },
   { method: 'GET', path: '/api/projects/{project}/report', weight: 0.15 },
