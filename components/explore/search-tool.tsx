@@ -8,6 +8,7 @@ import { Input, Select } from '@/components/ui/input';
 import type { Candidate, SearchResult } from '@/lib/calc/explore/search';
 import type { StageDTO } from '@/lib/stages/service';
 import { createExploreRunSchema, EXPLORE_METRICS, type CreateExploreRunInput } from '@/lib/validation/explore';
+import { formatEng } from '@/lib/format/number';
 import { formatMetric, METRIC_WORDS, PART_WORDS } from './format';
 import { openAsDraft } from './open-draft';
 import { SortableTable } from './sortable-table';
@@ -20,7 +21,8 @@ type Free = { on: boolean; min: string; max: string; series: 'E12' | 'E24' | 'E9
 type Limit = { metric: Metric; op: 'atLeast' | 'atMost'; value: string };
 
 const METRIC_OPTIONS = EXPLORE_METRICS.map((m) => <option key={m} value={m}>{METRIC_WORDS[m]?.label ?? m}</option>);
-const eng = (v: number) => String(Number(v.toPrecision(3)));
+/** a form value in engineering notation without blanks ('33.3k'), which the schema parses back */
+const eng = (v: number) => formatEng(Number(v.toPrecision(3)), '', 3).replace(/\s+/g, '');
 
 /** The part search form: free parts with a range and a series, limits, objective, trade-off axes. */
 export function SearchForm({ target, parts, onSubmit, pending, error, fieldErrors }: {

@@ -54,6 +54,9 @@ export function prepareChainTolerance(chain: ChainStage[], supply: ChainSupply, 
   const stages: ChainToleranceSetup['stages'] = [];
   const columns: ChainToleranceSetup['columns'] = [];
   const factors: ChainToleranceSetup['factors'] = [];
+  // the nominal chain gain and first-clip input, worked out as each build's are (stage gains with their own loads)
+  let cumulative = 1;
+  let clip = Infinity;
   for (const s of [...chain].sort((a, b) => a.position - b.position)) {
     if (!s.input) continue;
     const r = solved.stages.find((x) => x.stageId === s.id);
@@ -70,6 +73,9 @@ export function prepareChainTolerance(chain: ChainStage[], supply: ChainSupply, 
       const band = options.parts?.[key] ?? (p.kind === 'resistor' ? { minus: rTol, plus: rTol } : cTol);
       return { ...p, ...band, source: options.parts?.[key] ? ('entered' as const) : ('common practice' as const) };
     });
+    const hr = nominal.largeSignal.headroom;
+    if (hr.limitedBy !== 'none') clip = Math.min(clip, hr.maxDrive / Math.SQRT2 / Math.max(cumulative, 1e-12));
+    cumulative *= Math.abs(nominal.smallSignal.gain);
     const metrics = STAGE_METRICS.filter((k) => Number.isFinite(metricValue(nominal, k)));
     const node = r?.solvedSupply != null && s.supplyNode !== null ? nodes.findIndex((n) => n.key === s.supplyNode) : -1;
     stages.push({ id: s.id, name: s.name, input, parts, node, nominalSupply: supplyV, metrics });
@@ -79,8 +85,8 @@ export function prepareChainTolerance(chain: ChainStage[], supply: ChainSupply, 
   }
   if (stages.length === 0) throw new CalcError('invalid-input', 'No stage of this chain can be analysed.');
   factors.push({ key: 'mains', label: 'Mains (supply voltages)' });
-  columns.push({ key: 'chain:gain', label: 'Chain gain (magnitude)', unit: '', nominal: solved.totalGain !== null ? Math.abs(solved.totalGain) : null });
-  columns.push({ key: 'chain:clipInput', label: 'Chain input at first clip (rms)', unit: 'V', nominal: solved.firstClip?.chainInputRms ?? null });
+  columns.push({ key: 'chain:gain', label: 'Chain gain (magnitude)', unit: '', nominal: cumulative });
+  columns.push({ key: 'chain:clipInput', label: 'Chain input at first clip (rms)', unit: 'V', nominal: Number.isFinite(clip) ? clip : null });
   return {
     trials: options.trials,
     seed: options.seed | 0,

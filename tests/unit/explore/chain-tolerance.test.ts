@@ -43,6 +43,7 @@ describe('chain tolerance run', () => {
     // the chain gain of a build is the product of the stage gains, each stage with its own entered load
     const product = solved.stages.reduce((p, st) => p * Math.abs(st.gain!), 1);
     expect(Math.abs(gain.stats!.percentiles[2]!.value / product - 1)).toBeLessThan(1e-3);
+    expect(Math.abs(gain.nominal! / product - 1)).toBeLessThan(1e-3);
   });
 
   it('spreads with the mains, which then leads the sensitivity ranking of the output stage current', () => {
