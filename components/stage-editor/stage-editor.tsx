@@ -17,7 +17,6 @@ import {
   conflictCurrent,
   projectQueryOptions,
   stageQueryOptions,
-  useLiveAnalysis,
   useSaveStage,
   type AnalyzeBody,
   type LiveAnalysisState,
@@ -32,6 +31,7 @@ import { PlotPanel } from './plot-panel';
 import { RatingsPanel, ResultsPanel } from './results-panel';
 import { StageInputs } from './stage-inputs';
 import { suitableTube, suitsTopology } from './tube-choice';
+import { useLiveAnalysis } from './use-live-analysis';
 
 type Props = { projectId: number; stageId?: number; tubes: TubeOption[]; canEdit: boolean; initialProject?: ProjectDetail; initialStage?: StageDTO };
 
@@ -202,6 +202,7 @@ function StageEditorForm({ project, stage, tubes, canEdit }: { project: ProjectD
         if (!readOnly) void submit();
       }}
       data-testid="stage-editor"
+      data-analysis-source={live.source}
     >
       <div className="mb-4 flex flex-wrap items-end justify-between gap-3">
         <div className="min-w-0">

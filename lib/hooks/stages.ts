@@ -2,8 +2,7 @@
 
 // React Query options and hooks for the stage editor: live analysis, the stage and its project, saving.
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { useEffect, useMemo, useState } from 'react';
-import type { StageAnalysis } from '@/lib/calc';
+import type { StageAnalysis, Tube } from '@/lib/calc';
 import type { StageBody } from '@/lib/validation/stage';
 import { ApiRequestError, fetchJson } from './fetch-json';
 
@@ -34,11 +33,14 @@ export function projectQueryOptions(id: number) {
   });
 }
 
+/** The server's analysis and the engine tube it used (so the browser's worker can take over the next edits). */
+export type AnalyzeAnswer = { analysis: StageAnalysis; tube?: Tube };
+
 export function analyzeQueryOptions(body: AnalyzeBody | null) {
   return queryOptions({
     queryKey: stageKeys.analyze(body),
     // the signal aborts the request when a newer edit replaces this key
-    queryFn: ({ signal }) => fetchJson<{ analysis: StageAnalysis }>('/api/analyze', { method: 'POST', body, signal }).then((r) => r.analysis),
+    queryFn: ({ signal }) => fetchJson<AnalyzeAnswer>('/api/analyze', { method: 'POST', body, signal }),
     enabled: body !== null,
     staleTime: Infinity,
     gcTime: 60_000,
@@ -46,43 +48,7 @@ export function analyzeQueryOptions(body: AnalyzeBody | null) {
   });
 }
 
-function useDebounced<T>(value: T, key: string, ms: number): { value: T; key: string } {
-  const [state, setState] = useState({ value, key });
-  useEffect(() => {
-    if (key === state.key) return;
-    const t = setTimeout(() => setState({ value, key }), ms);
-    return () => clearTimeout(t);
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [key, ms]);
-  return state;
-}
-
 export type LiveAnalysisState = 'current' | 'updating' | 'invalid' | 'failed' | 'none';
-
-/**
- * Re-runs the analysis ~250 ms after the last edit. The last good result stays on screen while a request is in
- * flight, while the input is invalid, or after a calculation error; `state` says which.
- */
-export function useLiveAnalysis(body: AnalyzeBody | null, initial: StageAnalysis | null = null, debounceMs = 250) {
-  const key = useMemo(() => (body ? JSON.stringify(body) : ''), [body]);
-  const debounced = useDebounced(body, key, debounceMs);
-  const query = useQuery(analyzeQueryOptions(debounced.key === '' ? null : debounced.value));
-  const [lastGood, setLastGood] = useState<StageAnalysis | null>(initial);
-  const fresh = query.isSuccess ? query.data : undefined;
-  useEffect(() => {
-    if (fresh) setLastGood(fresh);
-  }, [fresh]);
-  const analysis = fresh ?? lastGood;
-  const pending = key !== debounced.key || query.isFetching;
-  const calcError = !pending && query.isError ? query.error : null;
-  const state: LiveAnalysisState = body === null ? 'invalid' : pending ? 'updating' : calcError ? 'failed' : fresh ? 'current' : analysis ? 'updating' : 'none';
-  return {
-    analysis,
-    state,
-    stale: state !== 'current',
-    error: calcError instanceof ApiRequestError ? calcError : calcError ? new ApiRequestError(String(calcError.message), 0, 'error') : null,
-  };
-}
 
 export type SaveStageVars =
   | { kind: 'create'; projectId: number; body: AnalyzeBody & { name: string; supplyNode?: string | null } }

@@ -27,6 +27,8 @@ export function contentSecurityPolicy(nonce: string, opts: { dev?: boolean; http
     "form-action 'self'",
     "frame-ancestors 'none'",
     "frame-src 'self' blob:",
+    // the stage editor runs the engine in a Web Worker loaded from our origin
+    "worker-src 'self' blob:",
     ...(opts.https ? ['upgrade-insecure-requests'] : []),
   ];
   return directives.join('; ');

@@ -18,5 +18,7 @@ export const POST = withUser('app:use', async (req) => {
   if (!('tubeId' in raw)) throw new ApiError('unprocessable_entity', 'Give either an inline tube or a library tubeId.', { fieldErrors: { tubeId: ['Choose a tube.'] } });
   const body = stageBodySchema.parse(raw);
   const { tubeModelId } = tubeModelIdSchema.parse(raw);
-  return NextResponse.json({ analysis: analyzeStage(await engineInputFor(body, tubeModelId)) });
+  const input = await engineInputFor(body, tubeModelId);
+  // the engine tube comes back too: the stage editor's browser worker analyses the next edits with it
+  return NextResponse.json({ analysis: analyzeStage(input), tube: input.tube });
 });
