@@ -141,7 +141,7 @@ const libraryStage = () => {
 };
 const triodeModel = () => ({ kind: 'koren-triode', name: `Fuzz model ${Math.floor(rand() * 1e6)}`, parameters: { mu: 100, ex: 1.4, kg1: 1060, kp: 600, kvb: 300 } });
 
-type BodyKind = 'json' | 'multipart-csv' | 'multipart-pdf' | 'multipart-photo' | 'none';
+type BodyKind = 'json' | 'form' | 'multipart-csv' | 'multipart-pdf' | 'multipart-photo' | 'none';
 interface Route {
   method: 'GET' | 'POST' | 'PATCH' | 'DELETE';
   path: string; // with {kind} placeholders
@@ -194,6 +194,11 @@ const ROUTES: Route[] = [
   { method: 'GET', path: '/api/revisions/{revision}/report', weight: 0.15 },
   { method: 'GET', path: '/api/invitations/{token}' },
   { method: 'GET', path: '/api/auth/session', weight: 0.3 },
+  { method: 'GET', path: '/api/auth/csrf', weight: 0.2 },
+  { method: 'GET', path: '/api/auth/providers', weight: 0.2 },
+  // sign-in with hostile fields and no valid CSRF token: refused before any password check, so the fuzz never
+  // counts towards the sign-in throttle of the demo accounts it uses
+  { method: 'POST', path: '/api/auth/callback/credentials', bodyKind: 'form', weight: 0.3 },
   // API writes
   { method: 'POST', path: '/api/analyze', body: () => (chance(0.5) ? inlineStage() : { ...libraryStage(), tubeModelId: Number(pick(ids.model)) }), weight: 3 },
   { method: 'POST', path: '/api/projects', body: () => ({ name: `Fuzz ${Math.floor(rand() * 1e6)}`, description: 'made by the fuzz', supply: { rawVoltage: 350, sourceResistance: 50, nodes: [{ key: 'B+1', name: 'Reservoir', droppingResistor: 0, filterCapacitor: '47u' }], heaters: [] } }), weight: 2 },
@@ -339,7 +344,12 @@ function buildRequest(): Req {
     const kind = route.bodyKind ?? (route.body ? 'json' : 'none');
     const base = route.body?.() ?? {};
     const protect = route.protectIds !== undefined;
-    if (kind.startsWith('multipart') && r < 0.75) {
+    if (kind === 'form' && r < 0.75) {
+      const field = () => (chance(0.5) ? pick(HOSTILE_TEXT).slice(0, 2000) : `fuzz${Math.floor(rand() * 1e6)}@example.invalid`);
+      body = new URLSearchParams({ csrfToken: pick(['', 'x', NUL, LONE_HIGH]), email: field(), password: field(), json: 'true' }).toString();
+      headers['content-type'] = 'application/x-www-form-urlencoded';
+      describe = 'sign-in form';
+    } else if (kind.startsWith('multipart') && r < 0.75) {
       body = multipart(kind);
       describe = `multipart (${kind})`;
     } else if (r < (protect ? 0 : 0.3)) {
