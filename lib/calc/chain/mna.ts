@@ -740,21 +740,23 @@ export function steadyState(
       best = norm;
       stalled = 0;
     } else stalled++;
-    if (!exact && (stalled >= 3 || iter >= 10)) {
+    if ((!exact && (stalled >= 3 || iter >= 10)) || (exact && stalled >= 2)) {
       // Broyden from the operating point's linearisation is not getting there (hard clipping, grid current):
-      // Newton on the exact transition along the current waveform from here on
+      // one cycle with the exact transition along the current waveform gives a fresh Jacobian, then Broyden again
       exact = true;
       sens = { phi: new Float64Array(S * S), m: new Float64Array(S * S), tmp: new Float64Array(S * S) };
       xStart.set(xs.subarray((N - 1) * n, N * n));
       sN = runCycle(s0);
       iter++;
       for (let i = 0; i < S; i++) r[i] = (sN[i] as number) - (s0[i] as number);
-    }
-    if (exact && sens) {
       const a = Float64Array.from(sens.phi);
       for (let i = 0; i < S; i++) a[i * S + i] = (a[i * S + i] as number) - 1;
       const inv = invert(a, S);
       if (inv) H = inv;
+      sens = null;
+      stalled = 0;
+      best = Infinity;
+      if (converged(r, s0)) break;
     }
     // Newton/Broyden step: s ← s − H·r with H ≈ (Φ − I)⁻¹
     for (let i = 0; i < S; i++) {
@@ -763,10 +765,20 @@ export function steadyState(
       dS[i] = -acc;
     }
     const s1 = new Float64Array(S);
-    for (let i = 0; i < S; i++) s1[i] = (s0[i] as number) + (dS[i] as number);
     // start the next cycle from this cycle's last sample (the fast states are already settled there)
-    xStart.set(xs.subarray((N - 1) * n, N * n));
-    sN = runCycle(s1);
+    const lastX = Float64Array.from(xs.subarray((N - 1) * n, N * n));
+    for (let attempt = 0; ; attempt++) {
+      for (let i = 0; i < S; i++) s1[i] = (s0[i] as number) + (dS[i] as number);
+      xStart.set(lastX);
+      try {
+        sN = runCycle(s1);
+        break;
+      } catch (err) {
+        // a step into states the circuit cannot follow (deep overdrive): take a shorter one
+        if (!(err instanceof CalcError) || attempt >= 5) throw err;
+        for (let i = 0; i < S; i++) dS[i] = 0.25 * (dS[i] as number);
+      }
+    }
     iter++;
     const r1 = new Float64Array(S);
     for (let i = 0; i < S; i++) r1[i] = (sN[i] as number) - (s1[i] as number);

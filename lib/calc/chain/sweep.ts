@@ -41,7 +41,9 @@ export function levelSweep(
   const count = Math.max(2, options.points ?? 41);
   const from = options.fromDbv ?? -40;
   const to = options.toDbv ?? 10;
-  const samples = options.samples ?? 128;
+  // 64 steps a period: levels and THD agree with 128 within a few parts in 10⁴ (the circuit is resistive at the
+  // drive frequency; the steps resolve the waveform, not a reactance), at half the cost
+  const samples = options.samples ?? 64;
   const points: SweepPoint[] = [];
   const failures: string[] = [];
   let start: SteadyStart | undefined = options.start ? { state: options.start.state, x: options.start.x, h: options.start.h } : undefined;
