@@ -5,6 +5,7 @@ import { readlinkSync } from 'node:fs';
 import { setPriority } from 'node:os';
 import { parentPort } from 'node:worker_threads';
 import { solveChain, type ChainOptions, type ChainStage, type ChainSupply } from '@/lib/calc/chain';
+import { projectLoop } from '@/lib/calc/feedback/project-loop';
 import type { ProjectDetail } from '@/lib/projects/service';
 import { renderProjectReportPdf, type ReportOptions } from './project-report';
 
@@ -38,7 +39,14 @@ port.on('message', async (job: PdfJob) => {
       } catch {
         // a chain the engine cannot solve is left out of the report; the stage pages still carry each stage's result
       }
-      opts = { ...opts, chain };
+      // the project's global feedback loop, when an output stage carries one (one that cannot be solved is left out)
+      let feedback: ReportOptions['feedback'] = null;
+      try {
+        feedback = projectLoop(stages, options?.links, { input: options?.inputRms ?? 0.1 });
+      } catch {
+        feedback = null;
+      }
+      opts = { ...opts, chain, feedback };
     }
     const pdf = await renderProjectReportPdf(job.project, opts);
     answer = { id: job.id, ok: true, pdf: new Uint8Array(pdf.buffer, pdf.byteOffset, pdf.byteLength) };

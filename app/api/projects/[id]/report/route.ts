@@ -2,7 +2,6 @@
 import { parseParams, withUser } from '@/lib/api/with-user';
 import { toleranceDigests } from '@/lib/explore/service';
 import { chainStagesFor, getProject } from '@/lib/projects/service';
-import { projectFeedback } from '@/lib/projects/feedback';
 import { renderReportPdf, ReportError, reportErrorResponse } from '@/lib/report/pdf';
 import { idParamSchema } from '@/lib/validation/auth';
 
@@ -16,9 +15,7 @@ export const GET = withUser('projects:read', async (_req, { params }) => {
   let pdf: Buffer;
   try {
     const tolerance = await toleranceDigests(project.stages.map((st) => ({ id: st.id, version: st.version })));
-    // the global feedback loop, when an output stage carries one (a loop that cannot be solved leaves its section out)
-    const feedback = await projectFeedback(project, { input: 0.1 }).catch(() => null);
-    pdf = await renderReportPdf(project, { tolerance, feedback }, chainInput);
+    pdf = await renderReportPdf(project, { tolerance }, chainInput);
   } catch (err) {
     if (err instanceof ReportError) return reportErrorResponse(err);
     throw err;
