@@ -9,7 +9,6 @@ import { useEffect, useMemo, useState } from 'react';
 import { useFieldArray, useForm, type FieldErrors } from 'react-hook-form';
 import { CartesianGrid, Line, LineChart, XAxis, YAxis } from 'recharts';
 import { AXIS_LABEL, AXIS_LINE, COLORS, ChartFrame, ChartLegend, GRID, TICK, niceTicks, tickNumber } from '@/components/charts/chart-parts';
-import { Caution } from '@/components/shell/caution';
 import { Badge, StatusBadge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
@@ -148,7 +147,7 @@ function CircuitForm({ project, editable, onSaved, initial, unsaved }: { project
         }
       />
       <CardBody className="space-y-4">
-        <Caution />
+        {/* the page's own <Caution /> sits above; these are the supply's specific cautions */}
         <SafetyNotes result={result} />
         <form onSubmit={onSubmit} noValidate className="space-y-4">
           <fieldset disabled={ro} className="grid gap-3 md:grid-cols-3">
