@@ -3,6 +3,7 @@
 // without a loop.
 import { describe, expect, it } from 'vitest';
 import * as feedbackRoute from '@/app/api/projects/[id]/feedback/route';
+import * as reportRoute from '@/app/api/projects/[id]/report/route';
 import { Project } from '@/models';
 import { FEEDBACK_DEMO } from '@/seeders/20261202002000-demo-feedback-amplifier';
 import { call } from '../support/api';
@@ -57,6 +58,16 @@ describe('GET /api/projects/{id}/feedback', () => {
     expect(noStep.used.capacitor).toBeNull();
     expect(noStep.feedback.phaseMargin).not.toBeCloseTo(fb.phaseMargin!, 1);
   });
+
+  it('the design report of the amplifier renders with its feedback section', async () => {
+    const project = await Project.findOne({ where: { name: FEEDBACK_DEMO.name } });
+    const res = await call(reportRoute.GET, { as: 'designer', params: { id: String(project!.id) } });
+    expect(res.status).toBe(200);
+    expect(res.res.headers.get('content-type')).toBe('application/pdf');
+    const pdf = Buffer.from(await res.res.arrayBuffer());
+    expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
+    expect(pdf.length).toBeGreaterThan(20_000);
+  }, 120_000);
 
   it('refuses values that are not values, in the one error shape', async () => {
     const project = await Project.findOne({ where: { name: FEEDBACK_DEMO.name } });
