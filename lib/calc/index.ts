@@ -24,6 +24,8 @@ export { childLangmuirDiodeCurrent, threeHalvesTriodeCurrent, planarPerveance } 
 export { tubeSubcircuit, stageNetlist, SPICE_PRELUDE } from './spice';
 export type { NetlistOptions, SpiceAnalysis } from './spice';
 export * as formulas from './formulas';
+export { analyzePushPullDriven, sineGridDrives } from './stages/push-pull-output';
+export type { PushPullDrivenResult, PushPullGridDrives } from './stages/push-pull-output';
 export type { AnalyzeOptions } from './stages/single-tube';
 
 /** True when every number reachable from `value` is finite (no path strings built: this runs on every result). */
