@@ -244,7 +244,10 @@ describe('chain, curves and report', () => {
     // heater totals: a 12AX7 section is half of a 0.3 A envelope at 6.3 V; the 300B filament 1.2 A at 5 V
     expect(chain.heaters.find((h) => h.key === 'H1')!.current).toBeCloseTo(0.15, 9);
     expect(chain.heaters.find((h) => h.key === 'H2')!.current).toBeCloseTo(1.2, 9);
-    expect(chain.stages[1]!.inputRms).toBeCloseTo(0.05 * Math.abs(d!.gain!), 9);
+    // the 300B's grid sees the driver's solved output (end to end, through the coupling capacitor at 1 kHz), and
+    // the driver, loaded by the 300B's 220 kΩ grid resistor, gives less than its unloaded gain would project
+    expect(Math.abs(chain.stages[1]!.inputRms! / d!.outputRms! - 1)).toBeLessThan(0.005);
+    expect(chain.stages[1]!.inputRms!).toBeLessThan(0.05 * Math.abs(d!.gain!));
     expect(chain.firstClip).not.toBeNull();
 
     const bad = await call(chainRoute.GET, { as: 'reviewer', path: `/api/projects/${project.id}/chain?input=loud`, params: { id: String(project.id) } });
