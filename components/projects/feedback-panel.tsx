@@ -103,7 +103,7 @@ function SquareChart({ wave, stale }: { wave: ProjectFeedback['feedback']['squar
   return (
     <ChartFrame testId={`square-${wave.frequency}`} label={`Square wave at ${formatEng(wave.frequency, 'Hz')}`} stale={stale} height={170} footer={
       <p className="mt-1 text-xs text-muted">
-        {formatEng(wave.frequency, 'Hz')}: overshoot <span className="num">{wave.overshootPercent.toFixed(1)} %</span>, tilt <span className="num">{wave.tiltPercent.toFixed(1)} %</span>
+        {formatEng(wave.frequency, 'Hz')}: overshoot <span className="num">{wave.overshootPercent.toFixed(1)} %</span>, tilt <span className="num">{wave.tiltPercent !== null ? `${wave.tiltPercent.toFixed(1)} %` : 'still rising at a quarter period'}</span>
       </p>
     }>
       <ComposedChart data={data} margin={{ top: 8, right: 8, bottom: 6, left: 6 }}>

@@ -221,8 +221,9 @@ export type SquareWave = {
   output: number[];
   /** overshoot above the settled top, percent of the step height */
   overshootPercent: number;
-  /** droop (tilt) of the top over the half period, percent */
-  tiltPercent: number;
+  /** droop (tilt) of the top from a quarter to the end of the half period, percent (null: the top is still rising
+   * at a quarter of the half period, so there is no flat top to measure) */
+  tiltPercent: number | null;
 };
 
 /**
@@ -265,14 +266,14 @@ export function squareWaveResponse(h: (f: number) => Complex, frequency: number,
   const half = samples / 2;
   let peak = -Infinity;
   for (let i = 0; i < half; i++) peak = Math.max(peak, out[i] as number);
-  const settled = out[Math.floor(half * 0.9)] as number;
-  const start = out[Math.floor(half * 0.1)] as number;
+  const settled = out[Math.floor(half * 0.95)] as number;
+  const start = out[Math.floor(half * 0.25)] as number;
   return {
     frequency,
     t,
     output: Array.from(out),
     // of the step height (the wave steps from −settled to +settled)
     overshootPercent: Math.max(0, (100 * (peak - settled)) / (2 * settled)),
-    tiltPercent: 100 * (1 - settled / start),
+    tiltPercent: start >= 0.9 * settled ? 100 * (start / settled - 1) : null,
   };
 }
