@@ -152,7 +152,7 @@ function CircuitForm({ project, editable, onSaved, initial, unsaved }: { project
         <form onSubmit={onSubmit} noValidate className="space-y-4">
           <fieldset disabled={ro} className="grid gap-3 md:grid-cols-3">
             <div className="space-y-2 rounded-md border border-rule p-3">
-              <h3 className="text-xs font-semibold uppercase tracking-wide text-muted">Mains</h3>
+              <h3 className="text-xs font-semibold text-muted">Mains</h3>
               <Field label="Mains voltage (rms)" htmlFor="sc-mains-v" unit="V" error={errors.mains?.voltage?.message}>
                 <Input id="sc-mains-v" className="num" {...form.register('mains.voltage')} />
               </Field>
@@ -167,7 +167,7 @@ function CircuitForm({ project, editable, onSaved, initial, unsaved }: { project
               </Field>
             </div>
             <div className="space-y-2 rounded-md border border-rule p-3">
-              <h3 className="text-xs font-semibold uppercase tracking-wide text-muted">Transformer secondary</h3>
+              <h3 className="text-xs font-semibold text-muted">Transformer secondary</h3>
               <Field label={kind === 'silicon-bridge' ? 'Secondary voltage (rms, whole winding)' : 'Secondary voltage (rms, each half)'} htmlFor="sc-sec-v" unit="V" error={errors.secondary?.voltage?.message}>
                 <Input id="sc-sec-v" className="num" {...form.register('secondary.voltage')} />
               </Field>
@@ -182,7 +182,7 @@ function CircuitForm({ project, editable, onSaved, initial, unsaved }: { project
               </Field>
             </div>
             <div className="space-y-2 rounded-md border border-rule p-3">
-              <h3 className="text-xs font-semibold uppercase tracking-wide text-muted">Rectifier and input</h3>
+              <h3 className="text-xs font-semibold text-muted">Rectifier and input</h3>
               <Field label="Rectifier" htmlFor="sc-rect" error={errors.rectifier?.kind?.message}>
                 <select
                   id="sc-rect"
@@ -231,7 +231,7 @@ function CircuitForm({ project, editable, onSaved, initial, unsaved }: { project
           </fieldset>
 
           <div className="space-y-2">
-            <h3 className="text-xs font-semibold uppercase tracking-wide text-muted">Filter sections, in order from the rectifier</h3>
+            <h3 className="text-xs font-semibold text-muted">Filter sections, in order from the rectifier</h3>
             {sections.fields.length === 0 ? <p className="text-sm text-muted">No sections: the reservoir is the only node.</p> : null}
             <ol className="space-y-2">
               {sections.fields.map((f, i) => {
@@ -285,7 +285,7 @@ function CircuitForm({ project, editable, onSaved, initial, unsaved }: { project
           </div>
 
           <div className="space-y-2">
-            <h3 className="text-xs font-semibold uppercase tracking-wide text-muted">Bleeders and other fixed loads (the stages’ currents are added from the chain)</h3>
+            <h3 className="text-xs font-semibold text-muted">Bleeders and other fixed loads (the stages’ currents are added from the chain)</h3>
             {loads.fields.map((f, i) => (
               <div key={f.id} className="grid items-end gap-2 md:grid-cols-[6rem_1fr_1fr_auto]">
                 <Field label="Node" htmlFor={`sc-l${i}-n`} error={errors.loads?.[i]?.node?.message}><Input id={`sc-l${i}-n`} className="num" disabled={ro} {...form.register(`loads.${i}.node` as const, { setValueAs: (v) => Number(v) })} /></Field>

@@ -103,7 +103,7 @@ export function SupplyEditor({ project, editable, onSaved }: { project: ProjectD
               <h3 className="mb-1.5 text-sm font-semibold">B+ nodes, in order from the rectifier</h3>
               <div className="space-y-2">
                 {nodes.fields.map((f, i) => (
-                  <div key={f.id} className="grid grid-cols-[5rem_1fr_8rem_8rem_auto] items-start gap-2" data-testid="supply-node-row">
+                  <div key={f.id} className="grid grid-cols-2 items-start gap-2 sm:grid-cols-[5rem_1fr_8rem_8rem_auto]" data-testid="supply-node-row">
                     <Field label="Key" htmlFor={`node-${i}-key`} error={nodeErr(i, 'key')}>
                       <Input id={`node-${i}-key`} className="num" {...form.register(`nodes.${i}.key`)} />
                     </Field>
@@ -130,7 +130,7 @@ export function SupplyEditor({ project, editable, onSaved }: { project: ProjectD
               <h3 className="mb-1.5 text-sm font-semibold">Heater supplies</h3>
               <div className="space-y-2">
                 {heaters.fields.map((f, i) => (
-                  <div key={f.id} className="grid max-w-2xl grid-cols-[5rem_1fr_8rem_auto] items-start gap-2">
+                  <div key={f.id} className="grid max-w-2xl grid-cols-2 items-start gap-2 sm:grid-cols-[5rem_1fr_8rem_auto]">
                     <Field label="Key" htmlFor={`heater-${i}-key`} error={heaterErr(i, 'key')}>
                       <Input id={`heater-${i}-key`} className="num" {...form.register(`heaters.${i}.key`)} />
                     </Field>
