@@ -260,7 +260,9 @@ export function analyzeChain(chain: ChainInput, options: ChainOptions = {}): Cha
   const plan = chain.feedback ? planFeedback(chain) : null;
   const p = plan ? plan.prepared : prepareChain(chain);
   const { amplitude, frequency } = chain.input;
-  const samples = options.samples ?? 128;
+  // 64 steps a period: the circuit is resistive at audio drive frequencies, so the steps resolve the waveform, not a
+  // reactance; levels and THD agree with 128 steps within a few parts in 10⁴ (checked against ngspice at this setting)
+  const samples = options.samples ?? 64;
   const main = solveLevel(p, amplitude, frequency, undefined, samples, true);
   const lin = linearise(p.cp, p.dc);
   const response = responseAt(p.cp, lin, p.built.output.probe, responseFrequencies(options.responsePerDecade ?? 10));
