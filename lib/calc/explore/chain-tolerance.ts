@@ -11,7 +11,7 @@ import type { StageAnalysis } from '../types';
 import { metricValue, METRIC_BY_KEY, type MetricKey } from './metrics';
 import { getPath, scaleEmission, scaleMains, setPath, stageParts } from './parts';
 import { createRng, drawFactor } from './random';
-import { describe, spearman } from './stats';
+import { describe, spearmanMatrix } from './stats';
 import {
   DEFAULT_CAPACITOR_TOLERANCE,
   DEFAULT_MAINS_VARIATION,
@@ -191,6 +191,7 @@ export function summarizeChainTolerance(setup: ChainToleranceSetup, blocksIn: Ch
   }
   const failed = Object.values(failures).reduce((s, v) => s + v, 0);
   const analysed = Math.max(1, total - failed);
+  const rho = spearmanMatrix(factors, metrics);
   return {
     trials: setup.trials,
     completed: total,
@@ -207,7 +208,7 @@ export function summarizeChainTolerance(setup: ChainToleranceSetup, blocksIn: Ch
     outsideBenchShare: 0,
     outsideByBench: [],
     sensitivity: setup.columns.map((c, k) => {
-      const rhos = setup.factors.map((f, j) => ({ factor: f.key, label: f.label, rho: spearman(factors[j] as Float64Array, metrics[k] as Float64Array) }));
+      const rhos = setup.factors.map((f, j) => ({ factor: f.key, label: f.label, rho: (rho[k] as number[])[j] as number }));
       const sum = rhos.reduce((s, r) => s + r.rho * r.rho, 0);
       return { metric: c.key as MetricKey, ranking: rhos.map((r) => ({ ...r, share: sum > 0 ? (r.rho * r.rho) / sum : 0 })).sort((a, b) => Math.abs(b.rho) - Math.abs(a.rho)) };
     }),

@@ -83,3 +83,46 @@ export function spearman(a: ArrayLike<number>, b: ArrayLike<number>): number {
   const c = Number(corr(ra, rb));
   return Number.isFinite(c) ? c : 0;
 }
+
+/** Pearson correlation of two equal-length arrays; 0 when either is constant. */
+export function pearson(a: ArrayLike<number>, b: ArrayLike<number>): number {
+  const n = a.length;
+  if (n < 3) return 0;
+  let ma = 0;
+  let mb = 0;
+  for (let i = 0; i < n; i++) {
+    ma += a[i] as number;
+    mb += b[i] as number;
+  }
+  ma /= n;
+  mb /= n;
+  let sab = 0;
+  let saa = 0;
+  let sbb = 0;
+  for (let i = 0; i < n; i++) {
+    const x = (a[i] as number) - ma;
+    const y = (b[i] as number) - mb;
+    sab += x * y;
+    saa += x * x;
+    sbb += y * y;
+  }
+  const c = sab / Math.sqrt(saa * sbb);
+  return Number.isFinite(c) ? c : 0;
+}
+
+/**
+ * Spearman's ρ of every factor column against every result column, ranking each column once. Rows where a result
+ * is not finite (a build that could not be analysed) are left out of that result's correlations.
+ */
+export function spearmanMatrix(factors: ArrayLike<number>[], results: ArrayLike<number>[]): number[][] {
+  const n = factors[0]?.length ?? 0;
+  const factorRanks = factors.map((f) => ranks(Array.from(f)));
+  return results.map((r) => {
+    const keep: number[] = [];
+    for (let i = 0; i < n; i++) if (Number.isFinite(r[i] as number)) keep.push(i);
+    if (keep.length < 3) return factors.map(() => 0);
+    const rr = ranks(keep.map((i) => r[i] as number));
+    if (keep.length === n) return factorRanks.map((fr) => pearson(fr, rr));
+    return factors.map((f) => pearson(ranks(keep.map((i) => f[i] as number)), rr));
+  });
+}

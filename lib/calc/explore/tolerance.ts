@@ -9,7 +9,7 @@ import type { OperatingPoint, StageAnalysis } from '../types';
 import { availableMetrics, METRIC_BY_KEY, metricValue, type MetricKey } from './metrics';
 import { getPath, scaleEmission, scaleMains, setPath, stageParts, type StagePart } from './parts';
 import { createRng, drawFactor, type Distribution } from './random';
-import { describe, spearman, type DistributionStats as Stats } from './stats';
+import { describe, spearmanMatrix, type DistributionStats as Stats } from './stats';
 
 /** Common practice: carbon/metal film resistors come in 1 %, 5 % and 10 %; 5 % is the usual default. */
 export const DEFAULT_RESISTOR_TOLERANCE = 0.05;
@@ -234,6 +234,7 @@ export function summarizeTolerance(setup: ToleranceSetup, blocksIn: TrialBlock[]
   }
   const failed = Object.values(failures).reduce((s, v) => s + v, 0);
   const analysed = Math.max(1, total - failed);
+  const rho = spearmanMatrix(factors, metricCols);
   return {
     trials: setup.trials,
     completed: total,
@@ -264,7 +265,7 @@ export function summarizeTolerance(setup: ToleranceSetup, blocksIn: TrialBlock[]
     outsideBenchShare: outside / analysed,
     outsideByBench: setup.bench.map((b) => ({ key: b.key, nominal: b.nominal, tolerance: b.tolerance, share: (outsideByBench[b.key] ?? 0) / analysed })),
     sensitivity: setup.metrics.map((k, c) => {
-      const rhos = cols.map((col, f) => ({ factor: col.key, label: col.label, rho: spearman(factors[f] as Float64Array, metricCols[c] as Float64Array) }));
+      const rhos = cols.map((col, f) => ({ factor: col.key, label: col.label, rho: (rho[c] as number[])[f] as number }));
       const sum = rhos.reduce((s, r) => s + r.rho * r.rho, 0);
       return {
         metric: k,

@@ -103,3 +103,21 @@ describe('tolerance run of a cathode-biased triode', () => {
     expect(s.outsideBenchShare).toBeGreaterThanOrEqual(ia.share);
   });
 });
+
+describe('rank correlation', () => {
+  it('the one-ranking-per-column matrix equals pairwise Spearman through mathjs, with failed builds left out', async () => {
+    const { spearman, spearmanMatrix, createRng } = await import('@/lib/calc/explore');
+    const rng = createRng(9);
+    const n = 500;
+    const f1 = Float64Array.from({ length: n }, () => rng.uniform());
+    const f2 = Float64Array.from({ length: n }, () => rng.normal());
+    const r1 = Float64Array.from(f1, (x, i) => x * 3 + 0.2 * (f2[i] as number));
+    const r2 = Float64Array.from(f2, (x, i) => (i % 37 === 0 ? NaN : Math.exp(x)));
+    const m = spearmanMatrix([f1, f2], [r1, r2]);
+    expect(m[0]![0]).toBeCloseTo(spearman(f1, r1), 12);
+    expect(m[0]![1]).toBeCloseTo(spearman(f2, r1), 12);
+    expect(m[1]![1]).toBeCloseTo(spearman(f2, r2), 12);
+    // a monotone function of a factor has ρ = 1 exactly
+    expect(m[1]![1]).toBeCloseTo(1, 12);
+  });
+});
