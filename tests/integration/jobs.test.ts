@@ -82,7 +82,7 @@ describe('exploration jobs', { timeout: 180_000 }, () => {
   });
 
   it('shares the queue between two workers and stores results with the stage version', async () => {
-    const ids = [await postTolerance(4000, 1), await postTolerance(4000, 2)];
+    const ids = [await postTolerance(20_000, 1), await postTolerance(20_000, 2)];
     const done = await waitFor('both runs', async () => {
       const rows = await ExploreRun.findAll({ where: { id: ids } });
       return rows.every((r) => r.status === 'completed') ? rows : null;
@@ -95,8 +95,8 @@ describe('exploration jobs', { timeout: 180_000 }, () => {
     expect(run.status).toBe('completed');
     expect(run.designVersion).toBe(stage!.version);
     expect(run.current).toBe(true);
-    expect(run.progress).toEqual({ done: 4000, total: 4000 });
-    expect(run.result.summary.completed).toBe(4000);
+    expect(run.progress).toEqual({ done: 20_000, total: 20_000 });
+    expect(run.result.summary.completed).toBe(20_000);
     expect(run.result.summary.metrics.map((m) => m.key)).toContain('plateCurrent');
     // the design report carries the tolerance summary of the current stage version
     const pdf = await call(reportRoute.GET, { as: 'reviewer', params: { id: String(stage!.projectId) } });
@@ -124,7 +124,7 @@ describe('exploration jobs', { timeout: 180_000 }, () => {
   });
 
   it('loses no job when the worker running it is killed', async () => {
-    const id = await postTolerance(12_000, 4);
+    const id = await postTolerance(60_000, 4);
     const running = await waitFor('running with progress', async () => {
       const r = await ExploreRun.findByPk(id);
       return r?.status === 'running' && r.progressDone > 0 ? r : null;
@@ -137,6 +137,6 @@ describe('exploration jobs', { timeout: 180_000 }, () => {
     }, 120_000);
     expect(done.worker).not.toBe(victim.name);
     expect(done.attempt).toBeGreaterThanOrEqual(2);
-    expect((done.result as { summary: { completed: number } }).summary.completed).toBe(12_000);
+    expect((done.result as { summary: { completed: number } }).summary.completed).toBe(60_000);
   });
 });
