@@ -21,7 +21,7 @@ import { Button } from '@/components/ui/button';
 type Tool = 'tolerance' | 'swap' | 'search';
 const TOOL_NAMES: Record<Tool, string> = { tolerance: 'Tolerance run', swap: 'Tube swap', search: 'Part search' };
 
-const CAPACITOR_PATHS = new Set(['bias.cathodeBypass', 'screen.bypass', 'load.couplingCapacitor']);
+const CAPACITOR_PATHS = new Set(['bias.cathodeBypass', 'screen.bypass', 'load.couplingCapacitor', 'secondGridBypass']);
 
 function partsOf(inputs: Record<string, unknown>): PartRow[] {
   const out: PartRow[] = [];

@@ -21,6 +21,12 @@ export const PART_WORDS: Record<string, string> = {
   'load.resistance': 'Load (next grid leak)',
   'load.couplingCapacitor': 'Coupling capacitor',
   gridResistor: 'Grid resistor',
+  biasResistor: 'Bias resistor',
+  'plateResistors.inverting': 'Plate resistor (inverting side)',
+  'plateResistors.nonInverting': 'Plate resistor (non-inverting side)',
+  'tail.biasResistor': 'Tail bias resistor',
+  'tail.tailResistor': 'Tail resistor',
+  'secondGridBypass': 'Second grid bypass capacitor',
 };
 
 export const METRIC_WORDS: Record<string, { label: string; unit: string }> = {
@@ -36,4 +42,5 @@ export const METRIC_WORDS: Record<string, { label: string; unit: string }> = {
   headroom: { label: 'Headroom (grid drive)', unit: 'V' },
   thd: { label: 'THD', unit: '%' },
   outputPower: { label: 'Output power', unit: 'W' },
+  splitterBalance: { label: 'Splitter balance (output ratio)', unit: 'dB' },
 };

@@ -18,6 +18,7 @@ export const EXPLORE_METRICS = [
   'headroom',
   'thd',
   'outputPower',
+  'splitterBalance',
 ] as const;
 export const SERIES_NAMES = ['E12', 'E24', 'E96'] as const;
 export const MAX_TRIALS = 200_000;

@@ -22,7 +22,7 @@ import {
   type VariedPart,
 } from './tolerance';
 
-const STAGE_METRICS: MetricKey[] = ['plateCurrent', 'plateDissipationShare', 'gain', 'headroom', 'thd', 'outputPower'];
+const STAGE_METRICS: MetricKey[] = ['plateCurrent', 'plateDissipationShare', 'gain', 'headroom', 'thd', 'outputPower', 'splitterBalance'];
 
 export type ChainToleranceSetup = {
   trials: number;

@@ -13,7 +13,8 @@ export type MetricKey =
   | 'gain'
   | 'headroom'
   | 'thd'
-  | 'outputPower';
+  | 'outputPower'
+  | 'splitterBalance';
 
 export type MetricDef = { key: MetricKey; label: string; unit: string; get: (a: StageAnalysis) => number | null };
 
@@ -32,6 +33,7 @@ export const METRICS: MetricDef[] = [
   { key: 'headroom', label: 'Headroom (grid drive)', unit: 'V', get: (a) => a.largeSignal.headroom.maxDrive },
   { key: 'thd', label: 'THD at the set drive', unit: '%', get: (a) => (a.largeSignal.drive > 0 ? a.largeSignal.thdPercent : null) },
   { key: 'outputPower', label: 'Output power', unit: 'W', get: (a) => a.largeSignal.outputPower },
+  { key: 'splitterBalance', label: 'Splitter balance (output ratio)', unit: 'dB', get: (a) => a.balance?.ratioDb ?? null },
 ];
 
 export const METRIC_BY_KEY = Object.fromEntries(METRICS.map((m) => [m.key, m])) as Record<MetricKey, MetricDef>;

@@ -23,6 +23,13 @@ const CANDIDATES: { path: string; label: string; kind: PartKind }[] = [
   { path: 'load.resistance', label: 'Load (next grid leak)', kind: 'resistor' },
   { path: 'load.couplingCapacitor', label: 'Coupling capacitor', kind: 'capacitor' },
   { path: 'gridResistor', label: 'Grid resistor', kind: 'resistor' },
+  // phase splitters
+  { path: 'biasResistor', label: 'Bias resistor', kind: 'resistor' },
+  { path: 'plateResistors.inverting', label: 'Plate resistor (inverting side)', kind: 'resistor' },
+  { path: 'plateResistors.nonInverting', label: 'Plate resistor (non-inverting side)', kind: 'resistor' },
+  { path: 'tail.biasResistor', label: 'Tail bias resistor', kind: 'resistor' },
+  { path: 'tail.tailResistor', label: 'Tail resistor', kind: 'resistor' },
+  { path: 'secondGridBypass', label: 'Second grid bypass capacitor', kind: 'capacitor' },
 ];
 
 export function getPath(obj: unknown, path: string): unknown {

@@ -121,3 +121,16 @@ describe('rank correlation', () => {
     expect(m[1]![1]).toBeCloseTo(1, 12);
   });
 });
+
+describe('tolerance run of a long-tailed pair', () => {
+  it('spreads the splitter balance, led by the two plate resistors', () => {
+    const ltp = fixture('ltp-12ax7-bias-tap');
+    const setup = prepareTolerance(ltp, { trials: 400, seed: 4, mains: { minus: 0, plus: 0 }, tubeSpread: 0 });
+    expect(setup.parts.map((p) => p.path)).toEqual(expect.arrayContaining(['plateResistors.inverting', 'plateResistors.nonInverting', 'tail.tailResistor']));
+    const s = summarizeTolerance(setup, [runToleranceTrials(setup, 0, 400)]);
+    const balance = s.metrics.find((m) => m.key === 'splitterBalance')!;
+    expect(balance.stats!.std).toBeGreaterThan(0.01);
+    const top = s.sensitivity.find((x) => x.metric === 'splitterBalance')!.ranking.slice(0, 2).map((r) => r.factor);
+    expect(top.sort()).toEqual(['plateResistors.inverting', 'plateResistors.nonInverting']);
+  });
+});
