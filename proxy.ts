@@ -32,7 +32,25 @@ function secured(req: NextRequest): NextResponse {
 const signedIn = withAuth((req) => secured(req), { pages: { signIn: '/sign-in' } });
 const PUBLIC = /^\/(api|sign-in|invitations|forbidden)(\/|$)/;
 
+/** A path with a malformed %-escape (e.g. %ED%A0%80, an unpaired surrogate) cannot name any record: 400, not 500. */
+function malformedPath(pathname: string): boolean {
+  try {
+    decodeURIComponent(pathname);
+    return false;
+  } catch {
+    return true;
+  }
+}
+
 export default async function proxy(req: NextRequest, event: NextFetchEvent) {
+  if (malformedPath(req.nextUrl.pathname)) {
+    const message = 'The address is not valid: it contains a malformed %-escape.';
+    const res = req.nextUrl.pathname.startsWith('/api/')
+      ? NextResponse.json({ error: { code: 'bad_request', message } }, { status: 400 })
+      : new NextResponse(message, { status: 400, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+    applySecurityHeaders(res.headers, API_CSP, isHttps(req));
+    return res;
+  }
   if (PUBLIC.test(req.nextUrl.pathname)) return secured(req);
   const res = await signedIn(req as Parameters<typeof signedIn>[0], event);
   // a redirect to the sign-in page carries the headers too

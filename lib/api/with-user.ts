@@ -128,8 +128,22 @@ function parseJsonBytes<S extends z.ZodType>(bytes: Buffer, schema: S): z.output
   } catch {
     throw new ApiError('bad_request', 'The request body is not valid JSON.');
   }
+  refuseDeepNesting(raw);
   refuseUnsafeText(raw);
   return schema.parse(raw);
+}
+
+/** No Anodyne body nests deeper than a few levels; a hostile one thousands deep must not exhaust the stack. */
+export const MAX_JSON_DEPTH = 32;
+
+export function refuseDeepNesting(value: unknown) {
+  const stack: [unknown, number][] = [[value, 0]];
+  while (stack.length) {
+    const [v, depth] = stack.pop()!;
+    if (!v || typeof v !== 'object') continue;
+    if (depth >= MAX_JSON_DEPTH) throw new ApiError('unprocessable_entity', `The request body nests deeper than ${MAX_JSON_DEPTH} levels; no Anodyne input does.`);
+    for (const child of Array.isArray(v) ? v : Object.values(v)) if (child && typeof child === 'object') stack.push([child, depth + 1]);
+  }
 }
 
 export function parseQuery<S extends z.ZodType>(req: NextRequest, schema: S): z.output<S> {

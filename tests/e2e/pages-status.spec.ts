@@ -20,3 +20,14 @@ test('a known project answers 200', async ({ page }) => {
   const res = await page.goto(href!);
   expect(res?.status()).toBe(200);
 });
+
+test('addresses the fuzz found answering 500: malformed escapes and repeated parameters', async ({ page }) => {
+  await signIn(page, 'designer');
+  for (const path of ['/projects/%ED%A0%80', '/tubes/%ED%A0%80', '/api/projects/%ED%A0%80']) {
+    const res = await page.request.get(path);
+    expect(res.status(), path).toBe(400);
+  }
+  const compare = await page.goto('/tubes/compare?ids=1,2&ids=3');
+  expect(compare?.status()).toBe(200);
+  await expect(page.getByRole('heading', { name: 'Compare tube types' })).toBeVisible();
+});

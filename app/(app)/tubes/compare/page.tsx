@@ -6,10 +6,12 @@ import { listTubeOptions } from '@/lib/tubes/service';
 
 export const metadata: Metadata = { title: 'Compare tube types' };
 
-export default async function ComparePage({ searchParams }: { searchParams: Promise<{ ids?: string }> }) {
+export default async function ComparePage({ searchParams }: { searchParams: Promise<{ ids?: string | string[] }> }) {
   await requirePageUser('tubes:read');
   const options = (await listTubeOptions()).filter((o) => o.models.length > 0);
-  const wanted = ((await searchParams).ids ?? '')
+  // ?ids=1,2 or ?ids=1&ids=2 (a repeated parameter arrives as an array)
+  const raw = (await searchParams).ids ?? '';
+  const wanted = (Array.isArray(raw) ? raw.join(',') : raw)
     .split(',')
     .map(Number)
     .filter((id) => options.some((o) => o.id === id))

@@ -1,4 +1,5 @@
 // GET /api/attachments/{id} – download an attachment (datasheet PDF) from object storage
+import { contentDisposition } from '@/lib/api/content-disposition';
 import { parseParams, withUser } from '@/lib/api/with-user';
 import { attachmentFile } from '@/lib/tubes/attachments';
 import { tubeIdParamSchema } from '@/lib/validation/tube';
@@ -10,7 +11,7 @@ export const GET = withUser('tubes:read', async (_req, { params }) => {
     headers: {
       'content-type': file.contentType,
       'content-length': String(file.body.length),
-      'content-disposition': `attachment; filename="${file.fileName.replace(/["\\\r\n]/g, '_')}"`,
+      'content-disposition': contentDisposition('attachment', file.fileName),
     },
   });
 });

@@ -1,4 +1,5 @@
 // GET /api/curve-sets/{id}/file – the uploaded CSV exactly as stored
+import { contentDisposition } from '@/lib/api/content-disposition';
 import { parseParams, withUser } from '@/lib/api/with-user';
 import { curveSetFile } from '@/lib/curves/service';
 import { tubeIdParamSchema } from '@/lib/validation/tube';
@@ -7,6 +8,6 @@ export const GET = withUser('tubes:read', async (_req, { params }) => {
   const { id } = parseParams(params, tubeIdParamSchema);
   const file = await curveSetFile(id);
   return new Response(new Uint8Array(file.body), {
-    headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': `attachment; filename="${file.fileName.replace(/["\\\r\n]/g, '_')}"` },
+    headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': contentDisposition('attachment', file.fileName) },
   });
 });

@@ -1,4 +1,5 @@
 // GET /api/revisions/{id}/report – the revision's PDF report, rendered from its frozen snapshot
+import { contentDisposition } from '@/lib/api/content-disposition';
 import { parseParams, withUser } from '@/lib/api/with-user';
 import { ReportError, reportErrorResponse } from '@/lib/report/pdf';
 import { revisionPdf } from '@/lib/review/service';
@@ -16,6 +17,6 @@ export const GET = withUser('reviews:read', async (_req, { params }) => {
     throw err;
   }
   return new Response(new Uint8Array(pdf.body), {
-    headers: { 'content-type': 'application/pdf', 'content-disposition': `inline; filename="${pdf.fileName}"`, 'cache-control': 'no-store' },
+    headers: { 'content-type': 'application/pdf', 'content-disposition': contentDisposition('inline', pdf.fileName), 'cache-control': 'no-store' },
   });
 });

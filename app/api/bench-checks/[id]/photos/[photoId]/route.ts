@@ -1,4 +1,5 @@
 // GET /api/bench-checks/{id}/photos/{photoId} – the photo itself, from object storage
+import { contentDisposition } from '@/lib/api/content-disposition';
 import { parseParams, withUser } from '@/lib/api/with-user';
 import { benchPhotoFile } from '@/lib/bench/service';
 import { photoParamSchema } from '@/lib/validation/bench';
@@ -9,7 +10,7 @@ export const GET = withUser('projects:read', async (_req, { params }) => {
   return new Response(new Uint8Array(file.body), {
     headers: {
       'content-type': file.contentType,
-      'content-disposition': `inline; filename="${file.fileName.replace(/[^A-Za-z0-9._-]+/g, '_')}"`,
+      'content-disposition': contentDisposition('inline', file.fileName),
       'cache-control': 'private, max-age=3600',
       'x-content-type-options': 'nosniff',
     },

@@ -1,4 +1,5 @@
 // GET /api/tubes/{id}/models/{modelId}/spice – the model as a SPICE subcircuit include file
+import { contentDisposition } from '@/lib/api/content-disposition';
 import { parseParams, withUser } from '@/lib/api/with-user';
 import { spiceModelFile } from '@/lib/tubes/service';
 import { tubeModelParamSchema } from '@/lib/validation/tube';
@@ -9,7 +10,7 @@ export const GET = withUser('tubes:read', async (_req, { params }) => {
   return new Response(file.text, {
     headers: {
       'content-type': 'text/plain; charset=utf-8',
-      'content-disposition': `attachment; filename="${file.fileName}"`,
+      'content-disposition': contentDisposition('attachment', file.fileName),
       'x-subcircuit-name': file.name,
     },
   });
