@@ -30,20 +30,17 @@ type Row = { va: number; ia: number };
 const toMa = (pts: VaIa[] | undefined): Row[] => (pts ?? []).map((p) => ({ va: p.va, ia: p.ia * 1e3 }));
 const maxOf = (pts: VaIa[] | undefined, key: 'va' | 'ia') => (pts ?? []).reduce((m, p) => (p[key] > m ? p[key] : m), 0);
 
-/** Grid-voltage label as practitioners write it on a curve: "−1.5 V". */
-export function gridLabel(vg: number): string {
-  return `${Number(vg.toPrecision(3))} V`.replace('-', '−');
-}
-
-/** Turns the engine's `analysis.plot.curves` into chart series (drawing data only). */
-export function curveSeriesFromPlot(curves: { gridVoltage: number; bias: boolean; points: VaIa[] }[]): PlateCurveSeries[] {
-  return curves.map((c) => ({ label: gridLabel(c.gridVoltage), vg: c.gridVoltage, points: c.points, emphasis: c.bias }));
-}
+export { gridLabel, curveSeriesFromPlot } from './series';
 
 export function plateAxisRange(p: Pick<PlateCurvesChartProps, 'curves' | 'dcLoadLine' | 'acLoadLine' | 'operatingPoint' | 'measured' | 'vaMax' | 'iaMax'>) {
   const vaData = Math.max(maxOf(p.dcLoadLine, 'va'), ...p.curves.map((c) => maxOf(c.points, 'va')), maxOf(p.measured, 'va'));
   const vaMax = p.vaMax ?? (vaData > 0 ? vaData : 100);
-  let ia = Math.max(maxOf(p.dcLoadLine, 'ia'), maxOf(p.acLoadLine, 'ia'), 2 * (p.operatingPoint?.ia ?? 0), maxOf(p.measured, 'ia'));
+  // The current axis follows where the tube works (AC load line swing, twice the quiescent current, measured
+  // points). A DC load line through a transformer's small winding resistance climbs to amperes within a few
+  // volts; it only counts while it stays near that range, otherwise it is clipped at the frame.
+  const working = Math.max(maxOf(p.acLoadLine, 'ia'), 2 * (p.operatingPoint?.ia ?? 0), maxOf(p.measured, 'ia'));
+  const dc = maxOf(p.dcLoadLine, 'ia');
+  let ia = working > 0 ? Math.max(working * 1.25, dc <= working * 1.5 ? dc : 0) : dc;
   if (!(ia > 0)) ia = Math.max(...p.curves.map((c) => maxOf(c.points, 'ia')), 1e-3);
   const iaMax = p.iaMax ?? ia * 1.05;
   return { vaMax, iaMax };

@@ -2,9 +2,7 @@
 
 // The chain solved end to end: the level sweep with its clip point, the whole chain's response, and the
 // waveform of every stage that limits at the chosen input (clipped as it really is, not a projected level).
-import { LevelSweepChart } from '@/components/charts/level-sweep-chart';
-import { ResponseChart } from '@/components/charts/response-chart';
-import { WaveformChart } from '@/components/charts/waveform-chart';
+import { LevelSweepChart, ResponseChart, WaveformChart } from '@/components/charts/lazy';
 import type { ChainAnalysis } from '@/lib/calc/chain/solve';
 import { formatEng } from '@/lib/format/number';
 import { LIMIT_WORDS } from '@/lib/report/labels';

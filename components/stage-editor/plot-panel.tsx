@@ -3,11 +3,8 @@
 // The big plate-curve plot and, below it, the other views switched by a segmented control. Drawing only:
 // every series comes from the engine's result.
 import { useState } from 'react';
-import { PlateCurvesChart, curveSeriesFromPlot } from '@/components/charts/plate-curves-chart';
-import { ResponseChart } from '@/components/charts/response-chart';
-import { SpectrumChart } from '@/components/charts/spectrum-chart';
-import { TransferChart } from '@/components/charts/transfer-chart';
-import { WaveformChart } from '@/components/charts/waveform-chart';
+import { PlateCurvesChart, ResponseChart, SpectrumChart, TransferChart, WaveformChart } from '@/components/charts/lazy';
+import { curveSeriesFromPlot } from '@/components/charts/series';
 import { Button } from '@/components/ui/button';
 import type { StageAnalysis } from '@/lib/calc';
 import { formatEng } from '@/lib/format/number';

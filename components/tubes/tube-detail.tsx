@@ -3,8 +3,8 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import Link from 'next/link';
 import { useState } from 'react';
-import { PlateCurvesChart, curveSeriesFromPlot } from '@/components/charts/plate-curves-chart';
-import { TransferChart } from '@/components/charts/transfer-chart';
+import { PlateCurvesChart, TransferChart } from '@/components/charts/lazy';
+import { curveSeriesFromPlot } from '@/components/charts/series';
 import { Caution } from '@/components/shell/caution';
 import { Badge } from '@/components/ui/badge';
 import { Button, buttonVariants } from '@/components/ui/button';

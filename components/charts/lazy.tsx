@@ -1,0 +1,19 @@
+'use client';
+
+// The charts loaded on demand: the charting library travels in its own chunk, fetched when a chart is first
+// shown, so pages stay light. A box of the chart's height holds the place meanwhile.
+import dynamic from 'next/dynamic';
+
+function ChartPlaceholder() {
+  return <div aria-hidden className="h-[280px] w-full animate-pulse rounded border border-rule/50" />;
+}
+
+const options = { ssr: false, loading: ChartPlaceholder } as const;
+
+export const PlateCurvesChart = dynamic(() => import('./plate-curves-chart').then((m) => m.PlateCurvesChart), options);
+export const TransferChart = dynamic(() => import('./transfer-chart').then((m) => m.TransferChart), options);
+export const ResponseChart = dynamic(() => import('./response-chart').then((m) => m.ResponseChart), options);
+export const SpectrumChart = dynamic(() => import('./spectrum-chart').then((m) => m.SpectrumChart), options);
+export const WaveformChart = dynamic(() => import('./waveform-chart').then((m) => m.WaveformChart), options);
+export const LevelSweepChart = dynamic(() => import('./level-sweep-chart').then((m) => m.LevelSweepChart), options);
+export const CompareChart = dynamic(() => import('./compare-chart').then((m) => m.CompareChart), options);
