@@ -58,3 +58,23 @@ describe('chart drawing helpers', () => {
     }
   });
 });
+
+// Push-pull output stages: the DC load line through the transformer primary's few hundred ohms would reach
+// amperes and squash the plate curves; the current axis must follow the working region instead.
+describe('push-pull plate curve axes', () => {
+  it('scale to the working region, not to the near-vertical DC load line', async () => {
+    const { readFileSync } = await import('node:fs');
+    for (const f of ['pp-6l6-ab-fixed', 'pp-2a3-fixed', 'pp-el34-a-cathode']) {
+      const raw = JSON.parse(readFileSync(`tests/fixtures/stages/${f}.json`, 'utf8'));
+      const a = analyzeStage(stageInputSchema.parse(raw.input ?? raw));
+      const series = curveSeriesFromPlot(a.plot.curves);
+      const range = plateAxisRange({ curves: series, dcLoadLine: a.plot.dcLoadLine, acLoadLine: a.plot.acLoadLine, operatingPoint: a.plot.operatingPoint });
+      const acPeak = Math.max(...(a.plot.acLoadLine ?? []).map((p) => p.ia));
+      // 6L6GC, 2A3 and EL34 peak plate currents stay well under 1 A in push-pull service (datasheet operating
+      // conditions list peak currents of a few hundred mA per tube; common practice)
+      expect(range.iaMax, f).toBeLessThan(1);
+      expect(range.iaMax, f).toBeGreaterThanOrEqual(acPeak);
+      expect(range.iaMax, f).toBeGreaterThanOrEqual(2 * (a.plot.operatingPoint?.ia ?? 0));
+    }
+  });
+});
