@@ -3,6 +3,7 @@
 // Two or three tube types overlaid on common axes: plate curves Ia(Va) or transfer curves Ia(Vg). Draws only.
 import { CartesianGrid, ComposedChart, Line, ResponsiveContainer, XAxis, YAxis } from 'recharts';
 import { AXIS_LABEL, AXIS_LINE, COLORS, ChartLegend, EmptyChart, GRID, TICK, tickNumber, type LegendEntry } from './chart-parts';
+import { COMPARE_STYLES } from './series';
 
 export type CompareSeriesInput = {
   label: string;
@@ -10,12 +11,7 @@ export type CompareSeriesInput = {
   curves: { key: string; points: { x: number; ia: number }[] }[];
 };
 
-// Hue and dash both differ, so the types stay apart in print and for colour-blind readers.
-export const COMPARE_STYLES = [
-  { color: COLORS.dcline, dash: undefined, kind: 'line' as const },
-  { color: COLORS.acline, dash: '8 4', kind: 'dashed' as const },
-  { color: COLORS.ink, dash: '2 3', kind: 'dashed' as const },
-];
+export { COMPARE_STYLES };
 
 /** 1, 2 or 5 times a power of ten, giving about `count` intervals over `span`. */
 function niceStep(span: number, count: number): number {

@@ -11,3 +11,11 @@ export function gridLabel(vg: number): string {
 export function curveSeriesFromPlot(curves: { gridVoltage: number; bias: boolean; points: VaIa[] }[]): PlateCurveSeries[] {
   return curves.map((c) => ({ label: gridLabel(c.gridVoltage), vg: c.gridVoltage, points: c.points, emphasis: c.bias }));
 }
+
+// Hue and dash both differ, so the types stay apart in print and for colour-blind readers (the compare chart's
+// series, and the legend drawn beside it). Colours are the theme's CSS variables, as in chart-parts' COLORS.
+export const COMPARE_STYLES = [
+  { color: 'var(--dcline)', dash: undefined, kind: 'line' as const },
+  { color: 'var(--acline)', dash: '8 4', kind: 'dashed' as const },
+  { color: 'var(--ink)', dash: '2 3', kind: 'dashed' as const },
+];

@@ -3,7 +3,8 @@
 import { useQuery } from '@tanstack/react-query';
 import { useRouter } from 'next/navigation';
 import { useState } from 'react';
-import { COMPARE_STYLES, CompareChart } from '@/components/charts/compare-chart';
+import { CompareChart } from '@/components/charts/lazy';
+import { COMPARE_STYLES } from '@/components/charts/series';
 import { gridLabel } from '@/components/charts/plate-curves-chart';
 import { Caution } from '@/components/shell/caution';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
