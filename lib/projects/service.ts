@@ -116,11 +116,14 @@ export async function listWatcherOptions(): Promise<WatcherOption[]> {
 export async function getProject(id: number, transaction?: Transaction): Promise<ProjectDetail> {
   const project = await Project.findByPk(id, { transaction });
   if (!project) throw new ApiError('not_found', 'No such project.');
-  const [owner, stages, watchers] = await Promise.all([
-    project.ownerId !== null ? User.findByPk(project.ownerId, { attributes: ['id', 'displayName'], transaction }) : null,
-    Stage.findAll({ where: { projectId: id }, order: [['position', 'ASC'], ['id', 'ASC']], transaction }),
-    ProjectWatcher.findAll({ where: { projectId: id }, transaction }),
-  ]);
+  const loadOwner = () => (project.ownerId !== null ? User.findByPk(project.ownerId, { attributes: ['id', 'displayName'], transaction }) : Promise.resolve(null));
+  const loadStages = () => Stage.findAll({ where: { projectId: id }, order: [['position', 'ASC'], ['id', 'ASC']], transaction });
+  const loadWatchers = () => ProjectWatcher.findAll({ where: { projectId: id }, transaction });
+  // A transaction holds one connection: its queries go one after another (pg refuses overlapping queries on a
+  // client). Without one, each query takes its own pooled connection and they run side by side.
+  const [owner, stages, watchers] = transaction
+    ? [await loadOwner(), await loadStages(), await loadWatchers()]
+    : await Promise.all([loadOwner(), loadStages(), loadWatchers()]);
   const watcherUsers = watchers.length ? await User.findAll({ where: { id: { [Op.in]: watchers.map((w) => w.userId) } }, attributes: ['id', 'displayName'], order: [['displayName', 'ASC']], transaction }) : [];
   return {
     id: project.id,
