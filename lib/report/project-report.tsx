@@ -11,6 +11,7 @@ import type { StageDTO } from '@/lib/stages/service';
 import type { ToleranceDigest } from '@/lib/explore/digest';
 import { formatEng } from '@/lib/format/number';
 import { inputRows, LIMIT_WORDS, TOPOLOGY_LABELS } from './labels';
+import { clipToFrame, platePlotRange } from './plot-range';
 
 export type ReportOptions = {
   /** a frozen revision: its stamp, who submitted it and, once decided, the decision (the revision summary) */
@@ -106,16 +107,15 @@ function KeyValues({ rows }: { rows: [string, string][] }) {
 /** Plate curves with the DC and AC load lines, Pa(max) and the operating point. */
 function PlatePlot({ a, width = 250, height = 170 }: { a: StageAnalysis; width?: number; height?: number }) {
   const p = a.plot;
-  const pts = [...p.curves.flatMap((c) => c.points), ...p.dcLoadLine, ...p.acLoadLine, p.operatingPoint];
-  const vaMax = Math.max(1, ...pts.map((q) => q.va)) * 1.02;
-  const iaCap = Math.max(p.operatingPoint.ia * 2.6, ...p.dcLoadLine.map((q) => q.ia)) * 1.05;
-  const iaMax = Math.max(1e-6, Math.min(iaCap, Math.max(...pts.map((q) => q.ia))));
+  const { vaMax, iaMax } = platePlotRange(p);
   const m = { l: 28, b: 18, t: 6, r: 6 };
   const W = width - m.l - m.r;
   const H = height - m.t - m.b;
   const x = (va: number) => m.l + (Math.max(0, Math.min(va, vaMax)) / vaMax) * W;
   const y = (ia: number) => m.t + H - (Math.max(0, Math.min(ia, iaMax)) / iaMax) * H;
-  const line = (ps: { va: number; ia: number }[]) => ps.filter((q) => q.ia <= iaMax * 1.001 && q.va <= vaMax).map((q) => `${x(q.va).toFixed(1)},${y(q.ia).toFixed(1)}`).join(' ');
+  // the longest run inside the frame (curves and load lines are cut where they leave it, not dropped)
+  const line = (ps: { va: number; ia: number }[]) =>
+    (clipToFrame(ps, vaMax, iaMax).sort((u, v) => v.length - u.length)[0] ?? []).map((q) => `${x(q.va).toFixed(1)},${y(q.ia).toFixed(1)}`).join(' ');
   return (
     <View>
       <Svg width={width} height={height}>

@@ -78,3 +78,33 @@ describe('push-pull plate curve axes', () => {
     }
   });
 });
+
+describe('report plate plot axes', () => {
+  it('push-pull: the current span follows the working region, the AC load line stays inside', async () => {
+    const { readFileSync } = await import('node:fs');
+    const { platePlotRange } = await import('@/lib/report/plot-range');
+    for (const f of ['pp-6l6-ab-fixed', 'pp-2a3-fixed', 'pp-el34-a-cathode']) {
+      const raw = JSON.parse(readFileSync(`tests/fixtures/stages/${f}.json`, 'utf8'));
+      const a = analyzeStage(stageInputSchema.parse(raw.input ?? raw));
+      const r = platePlotRange(a.plot);
+      // peak plate currents of a few hundred mA per tube in push-pull service (datasheet operating conditions; common practice)
+      expect(r.iaMax, f).toBeLessThan(1);
+      expect(r.iaMax, f).toBeGreaterThanOrEqual(Math.max(...a.plot.acLoadLine.map((p) => p.ia)));
+    }
+  });
+});
+
+describe('report plate plot clipping', () => {
+  it('cuts a steep DC load line at the top of the frame instead of dropping it', async () => {
+    const { clipToFrame } = await import('@/lib/report/plot-range');
+    // 450 V across a 200 Ω winding resistance: 2.25 A at 0 V, far above a 0.5 A frame (Ohm's law)
+    const runs = clipToFrame([{ va: 450, ia: 0 }, { va: 0, ia: 2.25 }], 500, 0.5);
+    expect(runs).toHaveLength(1);
+    const [start, end] = runs[0] ?? [];
+    expect(start).toEqual({ va: 450, ia: 0 });
+    expect(end?.ia).toBeCloseTo(0.5, 9);
+    expect(end?.va).toBeCloseTo(450 - 0.5 * 200, 9);
+    // a line wholly outside leaves nothing to draw
+    expect(clipToFrame([{ va: 10, ia: 1 }, { va: 20, ia: 2 }], 500, 0.5)).toEqual([]);
+  });
+});
