@@ -2,6 +2,7 @@
 
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import dynamic from 'next/dynamic';
 import Link from 'next/link';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
@@ -19,9 +20,12 @@ import { formatEng } from '@/lib/format/number';
 import { cn } from '@/lib/utils';
 import { renameProjectSchema, type RenameProjectInput } from '@/lib/validation/project';
 import { SubmitForReviewButton } from '@/components/reviews/submit-for-review-button';
+import { ChainLinksEditor } from './chain-links-editor';
 import { ChainView } from './chain-view';
 import { ReviewSettings } from './review-settings';
-import { SupplyCircuitEditor } from './supply-circuit-editor';
+
+// The supply editor (its ladder chart and rectifier tables) sits at the foot of the page: fetched after first paint.
+const SupplyCircuitEditor = dynamic(() => import('./supply-circuit-editor').then((m) => m.SupplyCircuitEditor), { ssr: false });
 
 export const projectKey = (id: number) => ['project', id] as const;
 
@@ -113,6 +117,8 @@ export function ProjectView({ initialProject, canWrite, watcherOptions = [] }: {
       </Card>
 
       <ChainView project={project} />
+
+      <ChainLinksEditor project={project} editable={editable} onSaved={setProject} />
 
       <SupplyCircuitEditor project={project} editable={editable} onSaved={setProject} />
 
