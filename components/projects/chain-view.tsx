@@ -1,11 +1,11 @@
 'use client';
 
 import { useQuery } from '@tanstack/react-query';
+import dynamic from 'next/dynamic';
 import { useEffect, useState } from 'react';
 import { Badge, StatusBadge } from '@/components/ui/badge';
 import { Card, CardBody, CardHeader } from '@/components/ui/card';
 import { Input } from '@/components/ui/input';
-import { FeedbackPanel } from '@/components/projects/feedback-panel';
 import type { ChainResult, ChainStageResult } from '@/lib/calc/chain';
 import type { ProjectDetail } from '@/lib/projects/service';
 import { fetchJson } from '@/lib/hooks/fetch-json';
@@ -14,6 +14,9 @@ import { formatEng, formatRatio } from '@/lib/format/number';
 import { cn } from '@/lib/utils';
 import { ChainLevels } from './chain-levels';
 import { chainQuerySchema } from '@/lib/validation/project';
+
+// The feedback panel (and its charts) sits below the chain table: fetched when the page has shown.
+const FeedbackPanel = dynamic(() => import('@/components/projects/feedback-panel').then((m) => m.FeedbackPanel), { ssr: false });
 
 function Num({ v, unit, digits = 3, className }: { v: number | null | undefined; unit: string; digits?: number; className?: string }) {
   return <span className={cn('num', className)}>{typeof v === 'number' && Number.isFinite(v) ? formatEng(v, unit, digits) : '–'}</span>;
