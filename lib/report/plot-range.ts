@@ -53,3 +53,14 @@ export function clipToFrame(ps: VaIa[], vaMax: number, iaMax: number): VaIa[][] 
   if (run.length) runs.push(run);
   return runs.filter((r) => r.length > 1);
 }
+
+/** Round tick values 0 … ≤ max (1, 2 or 5 times a power of ten apart), about `count` of them. */
+export function axisTicks(max: number, count = 5): number[] {
+  if (!(max > 0)) return [0];
+  const raw = max / count;
+  const p = 10 ** Math.floor(Math.log10(raw));
+  const step = [1, 2, 5, 10].map((k) => k * p).find((s) => s >= raw) ?? 10 * p;
+  const out: number[] = [];
+  for (let v = 0; v <= max * 1.0001; v += step) out.push(Number(v.toPrecision(12)));
+  return out;
+}

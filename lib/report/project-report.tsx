@@ -11,7 +11,8 @@ import type { StageDTO } from '@/lib/stages/service';
 import type { ToleranceDigest } from '@/lib/explore/digest';
 import { formatEng } from '@/lib/format/number';
 import { inputRows, LIMIT_WORDS, TOPOLOGY_LABELS } from './labels';
-import { clipToFrame, platePlotRange } from './plot-range';
+import { axisTicks, clipToFrame, platePlotRange } from './plot-range';
+import { SweepPlot } from './sweep-plot';
 
 export type ReportOptions = {
   /** a frozen revision: its stamp, who submitted it and, once decided, the decision (the revision summary) */
@@ -121,6 +122,12 @@ function PlatePlot({ a, width = 250, height = 170 }: { a: StageAnalysis; width?:
       <Svg width={width} height={height}>
         <Line x1={m.l} y1={m.t + H} x2={m.l + W} y2={m.t + H} stroke={INK} strokeWidth={0.6} />
         <Line x1={m.l} y1={m.t} x2={m.l} y2={m.t + H} stroke={INK} strokeWidth={0.6} />
+        {axisTicks(vaMax, 5).map((v) => (
+          <Text key={`x${v}`} x={x(v)} y={m.t + H + 8} style={{ fontSize: 5.5 }} fill={MUTED} textAnchor="middle">{String(v)}</Text>
+        ))}
+        {axisTicks(iaMax * 1e3, 4).map((v) => (
+          <Text key={`y${v}`} x={m.l - 2} y={y(v / 1e3) + 2} style={{ fontSize: 5.5 }} fill={MUTED} textAnchor="end">{String(v)}</Text>
+        ))}
         {p.curves.map((c, i) => (
           <Polyline key={i} points={line(c.points)} stroke={c.bias ? '#5b554b' : '#b4ad9f'} strokeWidth={c.bias ? 1.1 : 0.6} fill="none" />
         ))}
@@ -130,7 +137,7 @@ function PlatePlot({ a, width = 250, height = 170 }: { a: StageAnalysis; width?:
         <Circle cx={x(p.operatingPoint.va)} cy={y(p.operatingPoint.ia)} r={2.6} fill="#d9822b" />
       </Svg>
       <Text style={{ fontSize: 7, color: MUTED }}>
-        {t(`Plate voltage 0–${formatEng(vaMax, 'V')} across, plate current 0–${formatEng(iaMax, 'A')} up. Blue: DC load line; green: AC load line; red dashed: Pa(max); amber: operating point.`)}
+        {t(`Plate voltage Va in V across, plate current Ia in mA up. Blue: DC load line; green: AC load line; red dashed: Pa(max); amber: operating point.`)}
       </Text>
     </View>
   );
@@ -379,6 +386,7 @@ function ChainSection({ chain }: { chain: ChainResult }) {
       ) : null}
       {chain.endToEnd?.sweep && chain.endToEnd.sweep.points.length ? (
         <>
+          <SweepPlot sweep={chain.endToEnd.sweep} />
           <Text style={{ marginTop: 4 }}>{t('Level sweep (input and output in dBV; every fourth level and the clip point):')}</Text>
           <Table
             head={['In (dBV)', 'Out (dBV)', 'THD', 'State']}

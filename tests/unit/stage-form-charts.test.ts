@@ -108,3 +108,12 @@ describe('report plate plot clipping', () => {
     expect(clipToFrame([{ va: 10, ia: 1 }, { va: 20, ia: 2 }], 500, 0.5)).toEqual([]);
   });
 });
+
+describe('report axis ticks', () => {
+  it('are round numbers from zero that stay inside the axis', async () => {
+    const { axisTicks } = await import('@/lib/report/plot-range');
+    expect(axisTicks(1050, 5)).toEqual([0, 500, 1000]);
+    expect(axisTicks(468, 4)).toEqual([0, 200, 400]);
+    expect(axisTicks(3.4, 5)).toEqual([0, 1, 2, 3]);
+  });
+});
