@@ -1,12 +1,12 @@
 import 'server-only';
-import { performance } from 'node:perf_hooks';
 import { QueryTypes } from 'sequelize';
 import { ApiError } from '@/lib/api/errors';
 import { can } from '@/lib/auth/policy';
 import { readFormCapped, refuseUnsafeText } from '@/lib/api/with-user';
 import { isSafeText, UNSAFE_TEXT_MESSAGE } from '@/lib/validation/text';
 import type { CurrentUser } from '@/lib/auth/session';
-import { CurveFitError, fitCurves, fittedCurves, type FitQuality, type FitResult } from '@/lib/calc/fit';
+import { CurveFitError, fittedCurves, type FitQuality, type FitResult } from '@/lib/calc/fit';
+import { runInCalcThread } from '@/lib/calc-worker/pool';
 import { parseCurveCsv } from '@/lib/curves/parse-csv';
 import type { CurvePoint as MeasuredPoint } from '@/lib/curves/types';
 import { MAX_UPLOAD_BYTES, validateUpload } from '@/lib/curves/validate-upload';
@@ -63,7 +63,11 @@ export async function uploadCurveSet(actor: CurrentUser, tubeTypeId: number, fil
   const bytes = Buffer.from(await file.arrayBuffer());
   const check = validateUpload({ size: bytes.length, type: file.type, name: file.name, head: bytes.subarray(0, 16) });
   if (!check.ok) rejectUpload(bytes.length === 0 ? 'unprocessable_entity' : 'unsupported_media_type', check.errors);
-  const parsed = parseCurveCsv(bytes.toString('utf8'), { currentUnit: fields.currentUnit });
+  // A large file is read in the calc thread (tens of thousands of rows take longer than a request should hold it).
+  const text = bytes.toString('utf8');
+  const parsed = text.length > CSV_THREAD_CHARS
+    ? await runInCalcThread({ kind: 'parse-csv', text, options: { currentUnit: fields.currentUnit } })
+    : parseCurveCsv(text, { currentUnit: fields.currentUnit });
   if (!parsed.ok) rejectUpload('unprocessable_entity', parsed.errors);
 
   const id = await sequelize.transaction(async (transaction) => {
@@ -166,6 +170,8 @@ function mainScreenVoltage(points: MeasuredPoint[]): number | undefined {
 
 /** A chart draws at most this many measured points; larger sets are thinned evenly along each grid curve. */
 export const MAX_PLOT_POINTS = 6000;
+/** Uploads longer than this (characters) are parsed in the calc thread; shorter ones take a few milliseconds here. */
+const CSV_THREAD_CHARS = 200_000;
 /** A fit uses at most this many points, spread evenly along every measured curve (a denser file adds time, not information). */
 export const MAX_FIT_POINTS = 8000;
 
@@ -235,7 +241,7 @@ export type FitAnswer = {
   vaMax: number;
 };
 
-/** Runs the Levenberg–Marquardt fit in-process and stores it as a proposed fit. */
+/** Runs the Levenberg–Marquardt fit in the calc thread (lib/calc-worker) and stores it as a proposed fit. */
 export async function runFit(actor: CurrentUser, curveSetId: number, model: FitModel): Promise<FitAnswer> {
   const set = await CurveSet.findByPk(curveSetId);
   if (!set) throw new ApiError('not_found', 'No such curve set.');
@@ -251,7 +257,7 @@ export async function runFit(actor: CurrentUser, curveSetId: number, model: FitM
   const points = await curveSetPoints(curveSetId);
   let result: FitResult;
   try {
-    result = fitCurves(model, thinPoints(points, MAX_FIT_POINTS), { now: () => performance.now() });
+    result = await runInCalcThread({ kind: 'fit', model, points: thinPoints(points, MAX_FIT_POINTS) });
   } catch (err) {
     if (err instanceof CurveFitError) throw new ApiError('unprocessable_entity', `The fit could not run: ${err.message}`);
     throw err;
