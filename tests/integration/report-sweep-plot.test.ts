@@ -3,7 +3,6 @@
 import { PDFParse } from 'pdf-parse';
 import { describe, expect, it } from 'vitest';
 import * as projectRoute from '@/app/api/projects/[id]/route';
-import type { ChainInput } from '@/lib/calc/chain/input';
 import { chainStagesFor, type ProjectDetail } from '@/lib/projects/service';
 import { renderReportPdf } from '@/lib/report/pdf';
 import { spanTicks } from '@/lib/report/sweep-plot';
@@ -21,7 +20,7 @@ describe('the level sweep plot in the report', () => {
     expect(row, 'the demo seeder ran').not.toBeNull();
     const project = (await call(projectRoute.GET, { as: 'designer', params: { id: String(row!.id) } })).json.project as ProjectDetail;
     const chainInput = { stages: await chainStagesFor(project), supply: { ...project.supply, circuit: project.supplyCircuit }, options: { inputRms: 0.1, links: project.chainLinks } };
-    const buf = await renderReportPdf(project, {}, chainInput as unknown as ChainInput);
+    const buf = await renderReportPdf(project, {}, chainInput);
     const text = (await new PDFParse({ data: new Uint8Array(buf) }).getText()).text;
     expect(text).toContain('input level (dBV)');
     expect(text).toContain('output (dBV)');
