@@ -19,13 +19,13 @@ test.describe('review and bench settings on the project page', () => {
     const ia = card.getByLabel('Plate current ±');
     await ia.fill('0');
     await ia.blur();
-    await expect(card.getByTestId('tolerance-plateCurrent').getByRole('alert')).toHaveText('must be above 0 %');
+    await expect(card.getByTestId('tolerance-plateCurrent').getByRole('alert')).toHaveText('Plate current ±: must be above 0 %');
     await ia.fill('150');
     await ia.blur();
-    await expect(card.getByTestId('tolerance-plateCurrent').getByRole('alert')).toHaveText('must be at most 100 %');
+    await expect(card.getByTestId('tolerance-plateCurrent').getByRole('alert')).toHaveText('Plate current ±: must be at most 100 %');
     await ia.fill('five');
     await card.getByRole('button', { name: 'Save settings' }).click();
-    await expect(card.getByTestId('tolerance-plateCurrent').getByRole('alert')).toHaveText('must be a number');
+    await expect(card.getByTestId('tolerance-plateCurrent').getByRole('alert')).toHaveText('Plate current ±: must be a number');
     await ia.fill('5');
     await ia.blur();
     await expect(card.getByTestId('tolerance-plateCurrent').getByRole('alert')).toHaveCount(0);
