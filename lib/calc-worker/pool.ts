@@ -2,10 +2,9 @@ import 'server-only';
 // The engine's long computations (curve fits, large CSV parsing, chain and feedback solves) run in a worker thread,
 // so a fit of many thousand points or a 20-stage chain never stalls other requests. One small pool per process,
 // a bounded queue in front of it, and a time budget per job; the same pattern as the report drawing threads.
-import { existsSync, mkdirSync, readdirSync, rmSync } from 'node:fs';
-import path from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
+import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
+import { bundleWorkerFromSource, runningFromSource } from '@/lib/worker-threads/source-bundle';
 import { ApiError } from '@/lib/api/errors';
 import { CalcError } from '@/lib/calc/errors';
 import { CurveFitError } from '@/lib/calc/fit';
@@ -19,45 +18,8 @@ const MAX_QUEUE = Math.max(1, Number(process.env.CALC_QUEUE ?? 16));
 type Pending = { id: number; job: CalcJob; resolve: (v: unknown) => void; reject: (e: Error) => void; budget: number; timer?: NodeJS.Timeout };
 type Slot = { worker: Worker; busy: Pending | null };
 
-// Inside Next the bundler builds the entry from `new Worker(new URL(...))` as its own chunk; run from TypeScript
-// sources (vitest, tsx scripts) the entry is bundled on the fly with esbuild (see lib/report/pdf.ts).
-const fromSource = !process.env.NEXT_RUNTIME;
-let sourceBundle: string | null = null;
-
-function alive(pid: number) {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch {
-    return false;
-  }
-}
-
-async function bundleFromSource(): Promise<string> {
-  if (sourceBundle && existsSync(sourceBundle)) return sourceBundle;
-  const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
-  const outfile = path.join(root, `node_modules/.cache/anodyne/calc-worker-${process.pid}.mjs`);
-  mkdirSync(path.dirname(outfile), { recursive: true });
-  for (const f of readdirSync(path.dirname(outfile))) {
-    const pid = Number(/^calc-worker-(\d+)\.mjs$/.exec(f)?.[1]);
-    if (pid && !alive(pid)) rmSync(path.join(path.dirname(outfile), f), { force: true });
-  }
-  const esbuild = await import(/* turbopackIgnore: true */ /* webpackIgnore: true */ 'esbuild');
-  await esbuild.build({
-    entryPoints: [path.join(root, 'lib/calc-worker/worker.ts')],
-    outfile,
-    bundle: true,
-    platform: 'node',
-    format: 'esm',
-    target: 'node20',
-    packages: 'external',
-    alias: { '@': root },
-    logLevel: 'silent',
-  });
-  sourceBundle = outfile;
-  process.once('exit', () => rmSync(outfile, { force: true }));
-  return outfile;
-}
+const fromSource = runningFromSource;
+const bundleFromSource = () => bundleWorkerFromSource('lib/calc-worker/worker.ts', 'calc-worker');
 
 const WHAT: Record<CalcJob['kind'], string> = {
   fit: 'The fit',

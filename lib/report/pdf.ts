@@ -1,10 +1,9 @@
 import 'server-only';
 // Report PDFs are drawn in worker threads: a 20-stage report takes seconds of CPU, and on the request thread it
 // would stall every other user. One pool per process, a queue in front of it, and a time budget per report.
-import { existsSync, mkdirSync, readdirSync, rmSync } from 'node:fs';
-import path from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
+import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
+import { bundleWorkerFromSource, runningFromSource } from '@/lib/worker-threads/source-bundle';
 import { errorResponse } from '@/lib/api/errors';
 import type { ProjectDetail } from '@/lib/projects/service';
 import { MAX_REPORT_STAGES } from './limits';
@@ -38,50 +37,8 @@ const MAX_QUEUE = Math.max(1, Number(process.env.REPORT_QUEUE ?? 8));
 type Pending = { job: PdfJob; resolve: (b: Buffer) => void; reject: (e: Error) => void; budget: number; timer?: NodeJS.Timeout };
 type Slot = { worker: Worker; busy: Pending | null };
 
-// Inside Next (next start, next dev) the bundler builds the worker entry from `new Worker(new URL(...))` as its
-// own chunk. Run from TypeScript sources instead (vitest, tsx scripts), Node cannot load the .ts/.tsx graph in a
-// worker by itself, so the entry is bundled on the fly with esbuild. (Next keeps import.meta.url pointing at the
-// source file, so the runtime, not the URL, tells the two apart.)
-const fromSource = !process.env.NEXT_RUNTIME;
-let sourceBundle: string | null = null;
-
-function alive(pid: number) {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch {
-    return false;
-  }
-}
-
-async function bundleFromSource(): Promise<string> {
-  if (sourceBundle && existsSync(sourceBundle)) return sourceBundle;
-  const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
-  // One file per process: several test runs may bundle at the same time.
-  const outfile = path.join(root, `node_modules/.cache/anodyne/pdf-worker-${process.pid}.mjs`);
-  mkdirSync(path.dirname(outfile), { recursive: true });
-  // Files left by runs that ended without an exit event (a test runner's killed fork).
-  for (const f of readdirSync(path.dirname(outfile))) {
-    const pid = Number(/^pdf-worker-(\d+)\.mjs$/.exec(f)?.[1]);
-    if (pid && !alive(pid)) rmSync(path.join(path.dirname(outfile), f), { force: true });
-  }
-  const esbuild = await import(/* turbopackIgnore: true */ /* webpackIgnore: true */ 'esbuild');
-  await esbuild.build({
-    entryPoints: [path.join(root, 'lib/report/pdf-worker.ts')],
-    outfile,
-    bundle: true,
-    platform: 'node',
-    format: 'esm',
-    target: 'node20',
-    jsx: 'automatic',
-    packages: 'external',
-    alias: { '@': root },
-    logLevel: 'silent',
-  });
-  sourceBundle = outfile;
-  process.once('exit', () => rmSync(outfile, { force: true }));
-  return outfile;
-}
+const fromSource = runningFromSource;
+const bundleFromSource = () => bundleWorkerFromSource('lib/report/pdf-worker.ts', 'pdf-worker');
 
 class PdfPool {
   private slots: Slot[] = [];
